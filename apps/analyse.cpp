@@ -1,0 +1,11 @@
+// `macroreal analyse`: placeholder until its issue lands (replaced by the real subcommand).
+#include "apps/commands.hpp"
+
+namespace macroreal::apps {
+
+void register_analyse(CLI::App& app) {
+  auto* cmd = app.add_subcommand("analyse", "not available yet");
+  cmd->callback([] { set_action([] { return 2; }); });
+}
+
+}  // namespace macroreal::apps

@@ -1,0 +1,29 @@
+// Reading and validating protocol files. Every error is an InputError naming the file and the
+// JSON path of the offending field (e.g. "measurements.B.beta") and the rule it breaks;
+// unknown fields are errors too, so a typo never passes silently.
+#pragma once
+
+#include <string>
+
+#include <nlohmann/json.hpp>
+
+#include "protocol/protocol.hpp"
+
+namespace macroreal {
+
+struct ProtocolReadOptions {
+  // Add the sequences that the tests need but the file does not list (plan, simulate,
+  // predict); analyse keeps only what the file lists plus what the data names.
+  bool generate_needed_sequences = true;
+  // A file with no "state" is accepted (for analysis); predictions then refuse.
+  bool require_state = false;
+};
+
+Protocol read_protocol(const std::string& path, const ProtocolReadOptions& options = {});
+Protocol parse_protocol(const nlohmann::json& doc, const std::string& file_label,
+                        const ProtocolReadOptions& options = {});
+// A state object (the "state" field or a "prepared.from"), used also for nested states.
+StatePtr parse_state(const nlohmann::json& j, const std::string& file_label,
+                     const std::string& path);
+
+}  // namespace macroreal
