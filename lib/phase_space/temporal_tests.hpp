@@ -11,6 +11,7 @@
 #include <vector>
 
 #include "phase_space/sequence.hpp"
+#include "phase_space/state.hpp"
 
 namespace macroreal {
 
@@ -75,5 +76,25 @@ double nsit_signalling(const M& model, const MeasurementSequence& all, int a, in
   return model.probability_value(only_b, {+1}) - model.probability_value(ab, {+1, +1}) -
          model.probability_value(ab, {-1, +1});
 }
+
+// Closed-form decomposition of the NSIT signalling S from step a to step b (a < b) under the
+// phase-insensitive Gaussian channels, without rotations. With gamma' = beta_B propagated back
+// from t_B to t_A (shrink), s the diffusion factor over [t_A, t_B], Theta = Im(beta_A gamma'*):
+//   S = 1/2 c_B Re( e^{i phi_B} s chi_A(gamma') (1 - f) ),
+//   f = cos Theta (symmetric split of A),  f = e^{-i Theta} cos Theta (one-sided split of A),
+// where chi_A is the characteristic function at t_A (the state after the channel from 0 to
+// t_A). It follows from sum_o K_o^dag D(g) K_o = f(g) D(g) for the measurement A
+// (measurement.cpp) and K_o^dag K_o summing to 1; A's contrast does not enter.
+struct SignallingDecomposition {
+  double S = 0.0;
+  cplx overlap = 0.0;               // s chi_A(gamma'): the propagated <D(beta_B)> at t_B
+  double geometric_phase_rad = 0.0; // Theta = Im(beta_A gamma'*)
+  double kick_phase_rad = 0.0;      // -Theta for the one-sided split of A, 0 for symmetric
+  cplx f = 1.0;                     // the factor f above
+};
+// Throws UnsupportedError when the noise rotates (dephasing or frequency noise), DomainError
+// for bad indices.
+SignallingDecomposition nsit_decomposition(const State& state, const MeasurementSequence& all,
+                                           int a, int b);
 
 }  // namespace macroreal

@@ -29,6 +29,8 @@ class WeylSum {
 
   const std::vector<WeylTerm>& terms() const { return terms_; }
   std::size_t size() const { return terms_.size(); }
+  // Direct access for the engine's allocation-free inner loops (merge() restores the order).
+  std::vector<WeylTerm>& mutable_terms() { return terms_; }
 
   // Adds c * D(gamma) without merging (call merge() afterwards).
   void add(cplx coeff, cplx gamma) { terms_.push_back({coeff, gamma}); }
