@@ -5,7 +5,8 @@
 // `shot` (non-negative integer) and `time_s` (a number), `r1`..`rN` (detector result of step
 // k: "dark" / "bright", or a non-negative integer photon count read dark when count <=
 // threshold); other columns are kept in the header check and ignored. A row with fewer
-// fields than the header has the missing trailing fields empty.
+// fields than the header has the missing trailing fields empty. Fields are not quoted (no
+// field of this format contains a comma); an empty `shot` or `time_s` means "not given".
 // Each row is validated against its sequence (unknown sequence, a result after the shot had
 // ended under destructive readout, a missing result where the shot had to go on, a malformed
 // result / shot / time_s, a duplicated shot index within a sequence, too many fields). With
@@ -45,6 +46,7 @@ inline constexpr const char* kDuplicatedShot = "duplicated shot";
 inline constexpr const char* kMalformedTime = "malformed time_s";
 inline constexpr const char* kTooManyFields = "too many fields";
 inline constexpr const char* kMalformedCount = "malformed count";  // counts JSON values
+inline constexpr const char* kResultBeyondSteps = "result beyond the last step";
 }  // namespace row_reason
 
 struct OutcomeTableOptions {

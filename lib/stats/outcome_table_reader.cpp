@@ -1,0 +1,534 @@
+// Streaming CSV outcome tables and counts JSON into CampaignCounts (see the header).
+//
+// Speed: the file is read in blocks of options.block_bytes with fread; complete lines are
+// parsed in place (memchr for line ends and commas, std::from_chars for numbers), so a row
+// costs no allocation. Sequence names are looked up in a small open-addressing hash table
+// over string_view. A shot's path through its sequence is coded as (1 << length) | bits
+// (bit = 1 for bright, first step most significant) and mapped to its cell by a table.
+#include "stats/outcome_table_reader.hpp"
+
+#include <algorithm>
+#include <cerrno>
+#include <charconv>
+#include <cmath>
+#include <cstdint>
+#include <cstdio>
+#include <cstring>
+#include <fstream>
+#include <memory>
+#include <string_view>
+
+#include "core/error.hpp"
+
+namespace macroreal {
+
+std::string to_string(BadRowPolicy p) { return p == BadRowPolicy::error ? "error" : "skip"; }
+
+BadRowPolicy parse_bad_row_policy(const std::string& s) {
+  if (s == "error") return BadRowPolicy::error;
+  if (s == "skip") return BadRowPolicy::skip;
+  throw DomainError("bad-row policy '" + s + "', but must be 'error' or 'skip'");
+}
+
+namespace {
+
+constexpr int kMaxSteps = 20;
+
+// Per-sequence facts the row check needs.
+struct SequenceShape {
+  int steps = 0;
+  std::vector<int> code_to_cell;      // (1 << len) | bright bits  ->  cell index or -1
+  std::vector<std::uint64_t> seen;    // one bit per shot index (duplicate check)
+};
+
+std::vector<SequenceShape> shapes_of(const CampaignCounts& counts) {
+  std::vector<SequenceShape> shapes;
+  for (const auto& s : counts.sequences) {
+    SequenceShape sh;
+    sh.steps = static_cast<int>(s.steps.size());
+    if (sh.steps > kMaxSteps)
+      throw DomainError("sequence " + s.name + " has " + std::to_string(sh.steps) +
+                        " steps, but at most 20 are supported");
+    if (static_cast<int>(s.dark_is.size()) < sh.steps)
+      throw DomainError("sequence " + s.name + " has " + std::to_string(s.dark_is.size()) +
+                        " dark_is entries for " + std::to_string(sh.steps) + " steps");
+    sh.code_to_cell.assign(std::size_t{2} << sh.steps, -1);
+    for (std::size_t j = 0; j < s.cells.size(); ++j) {
+      const auto& cell = s.cells[j];
+      std::size_t bits = 0;
+      for (std::size_t k = 0; k < cell.size(); ++k)
+        bits = (bits << 1) | (cell[k] == s.dark_is[k] ? 0u : 1u);
+      sh.code_to_cell[(std::size_t{1} << cell.size()) | bits] = static_cast<int>(j);
+    }
+    shapes.push_back(std::move(sh));
+  }
+  return shapes;
+}
+
+// Small open-addressing hash table: sequence name -> index.
+class NameTable {
+ public:
+  explicit NameTable(const std::vector<std::string>& names) : names_(names) {
+    std::size_t cap = 8;
+    while (cap < 2 * names_.size()) cap *= 2;
+    slots_.assign(cap, -1);
+    for (std::size_t i = 0; i < names_.size(); ++i) {
+      std::size_t h = hash(names_[i]) & (cap - 1);
+      while (slots_[h] >= 0) h = (h + 1) & (cap - 1);
+      slots_[h] = static_cast<int>(i);
+    }
+  }
+  int find(std::string_view s) const {
+    const std::size_t mask = slots_.size() - 1;
+    for (std::size_t h = hash(s) & mask;; h = (h + 1) & mask) {
+      const int i = slots_[h];
+      if (i < 0) return -1;
+      if (names_[static_cast<std::size_t>(i)] == s) return i;
+    }
+  }
+
+ private:
+  static std::size_t hash(std::string_view s) {
+    std::uint64_t h = 1469598103934665603ull;  // FNV-1a
+    for (unsigned char c : s) h = (h ^ c) * 1099511628211ull;
+    return static_cast<std::size_t>(h ^ (h >> 29));
+  }
+  std::vector<std::string> names_;
+  std::vector<int> slots_;
+};
+
+std::optional<double> threshold_of(const Protocol& protocol, const OutcomeTableOptions& options) {
+  return options.threshold ? options.threshold : protocol.detection.threshold;
+}
+
+// Parses "dark" / "bright" / a non-negative integer count. Returns 0 dark, 1 bright,
+// -1 malformed, -2 a count with no threshold.
+int parse_result(std::string_view f, const std::optional<double>& threshold) {
+  if (f == "dark") return 0;
+  if (f == "bright") return 1;
+  if (f.empty() || f.size() > 18) return -1;
+  std::uint64_t v = 0;
+  for (char c : f) {
+    if (c < '0' || c > '9') return -1;
+    v = v * 10 + static_cast<std::uint64_t>(c - '0');
+  }
+  if (!threshold) return -2;
+  return static_cast<double>(v) <= *threshold ? 0 : 1;
+}
+
+void count_reason(RowSummary& rows, const char* reason, long n = 1) {
+  rows.rejected += n;
+  rows.reasons[reason] += n;
+}
+
+// ----------------------------------------------------------------------------------------
+class CsvParser {
+ public:
+  CsvParser(std::string file, const Protocol& protocol, const OutcomeTableOptions& options)
+      : file_(std::move(file)),
+        options_(options),
+        threshold_(threshold_of(protocol, options)),
+        destructive_(protocol.readout == Readout::destructive) {
+    result_.counts = empty_counts(protocol);
+    result_.time_ranges.assign(result_.counts.sequences.size(), ShotTimeRange{});
+    shapes_ = shapes_of(result_.counts);
+    std::vector<std::string> names;
+    for (const auto& s : result_.counts.sequences) names.push_back(s.name);
+    names_ = std::make_unique<NameTable>(names);
+  }
+
+  // Parses the complete lines in [begin, end) (each ends with '\n', except possibly the
+  // last one at the end of input).
+  void lines(const char* begin, const char* end) {
+    const char* p = begin;
+    while (p < end) {
+      const char* nl = static_cast<const char*>(std::memchr(p, '\n', static_cast<std::size_t>(end - p)));
+      const char* line_end = nl ? nl : end;
+      ++line_no_;
+      line(p, line_end);
+      p = nl ? nl + 1 : end;
+    }
+  }
+
+  OutcomeTableRead finish() {
+    if (!have_header_) throw InputError(file_, "", "no header line (expected sequence,r1,...)");
+    return std::move(result_);
+  }
+
+ private:
+  enum Role : int { kIgnore = -1, kSequence = -2, kShot = -3, kTime = -4 };  // >= 0: result k
+
+  void line(const char* b, const char* e) {
+    if (e > b && e[-1] == '\r') --e;
+    if (b == e) return;  // blank line
+    if (*b == '#') return;
+    if (!have_header_) {
+      header(b, e);
+      return;
+    }
+    row(b, e);
+  }
+
+  void header(const char* b, const char* e) {
+    if (e - b >= 3 && std::memcmp(b, "\xEF\xBB\xBF", 3) == 0) b += 3;  // UTF-8 byte-order mark
+    std::vector<std::string> names;
+    for (const char* p = b;;) {
+      const char* c = static_cast<const char*>(std::memchr(p, ',', static_cast<std::size_t>(e - p)));
+      names.emplace_back(p, c ? c : e);
+      if (!c) break;
+      p = c + 1;
+    }
+    const std::string where = "line " + std::to_string(line_no_);
+    std::vector<int> result_cols;
+    for (std::size_t i = 0; i < names.size(); ++i) {
+      const std::string& n = names[i];
+      for (std::size_t j = 0; j < i; ++j)
+        if (names[j] == n && !n.empty())
+          throw InputError(file_, where + ", column " + std::to_string(i + 1) + " (" + n + ")",
+                           "column name repeated (first in column " + std::to_string(j + 1) + ")");
+      int role = kIgnore;
+      if (n == "sequence") role = kSequence;
+      else if (n == "shot") role = kShot;
+      else if (n == "time_s") role = kTime;
+      else if (n.size() >= 2 && n[0] == 'r' && n[1] >= '1' && n[1] <= '9' &&
+               n.find_first_not_of("0123456789", 1) == std::string::npos && n.size() <= 4) {
+        role = std::stoi(n.substr(1)) - 1;
+        if (role >= kMaxSteps)
+          throw InputError(file_, where + ", column " + std::to_string(i + 1) + " (" + n + ")",
+                           "at most 20 result columns are supported");
+      }
+      roles_.push_back(role);
+      if (role == kSequence) seq_col_ = static_cast<int>(i);
+      if (role == kShot) shot_col_ = static_cast<int>(i);
+      if (role == kTime) time_col_ = static_cast<int>(i);
+      if (role >= 0) {
+        if (static_cast<int>(result_cols.size()) <= role) result_cols.resize(static_cast<std::size_t>(role) + 1, -1);
+        result_cols[static_cast<std::size_t>(role)] = static_cast<int>(i);
+      }
+    }
+    column_names_ = names;
+    if (std::find(roles_.begin(), roles_.end(), kSequence) == roles_.end())
+      throw InputError(file_, where, "the header has no 'sequence' column");
+    for (std::size_t k = 0; k < result_cols.size(); ++k)
+      if (result_cols[k] < 0)
+        throw InputError(file_, where, "the header has r" + std::to_string(result_cols.size()) +
+                                           " but no r" + std::to_string(k + 1));
+    result_columns_ = result_cols;
+    have_header_ = true;
+  }
+
+  std::string where(int column) const {
+    std::string w = "line " + std::to_string(line_no_);
+    if (column >= 0)
+      w += ", column " + std::to_string(column + 1) + " (" +
+           column_names_[static_cast<std::size_t>(column)] + ")";
+    return w;
+  }
+
+  // A rejected row: throw (policy error) or count it (policy skip).
+  void reject(const char* reason, int column, const std::string& detail) {
+    if (options_.bad_rows == BadRowPolicy::error) throw InputError(file_, where(column), detail);
+    count_reason(result_.counts.rows, reason);
+  }
+
+  void row(const char* b, const char* e) {
+    auto& rows = result_.counts.rows;
+    ++rows.read;
+    std::string_view seq_f, shot_f, time_f;
+    std::string_view res[kMaxSteps];
+    const int seq_col = seq_col_, shot_col = shot_col_, time_col = time_col_;
+    const int ncols = static_cast<int>(roles_.size());
+    int col = 0;
+    for (const char* p = b;; ++col) {
+      const char* c = static_cast<const char*>(std::memchr(p, ',', static_cast<std::size_t>(e - p)));
+      const char* fe = c ? c : e;
+      if (col >= ncols)
+        return reject(row_reason::kTooManyFields, -1,
+                      "the row has more fields than the header's " + std::to_string(ncols));
+      const int role = roles_[static_cast<std::size_t>(col)];
+      const std::string_view f(p, static_cast<std::size_t>(fe - p));
+      if (role >= 0) res[role] = f;
+      else if (role == kSequence) seq_f = f;
+      else if (role == kShot) shot_f = f;
+      else if (role == kTime) time_f = f;
+      if (!c) break;
+      p = c + 1;
+    }
+    // Columns missing at the end of a short row stay empty.
+
+    const int s = names_->find(seq_f);
+    if (s < 0)
+      return reject(row_reason::kUnknownSequence, seq_col,
+                    "sequence '" + std::string(seq_f) + "' is not in the protocol");
+    auto& shape = shapes_[static_cast<std::size_t>(s)];
+
+    std::uint64_t shot = 0;
+    const bool has_shot = !shot_f.empty();
+    if (has_shot) {
+      const auto [ptr, ec] = std::from_chars(shot_f.data(), shot_f.data() + shot_f.size(), shot);
+      if (ec != std::errc() || ptr != shot_f.data() + shot_f.size() || shot >= (std::uint64_t{1} << 32))
+        return reject(row_reason::kMalformedShot, shot_col,
+                      "shot '" + std::string(shot_f) + "' is not a non-negative integer below 2^32");
+      const std::size_t word = static_cast<std::size_t>(shot >> 6);
+      if (word < shape.seen.size() && (shape.seen[word] >> (shot & 63)) & 1u)
+        return reject(row_reason::kDuplicatedShot, shot_col,
+                      "shot " + std::to_string(shot) + " of sequence '" + std::string(seq_f) +
+                          "' appears a second time");
+    }
+    double t = 0.0;
+    const bool has_time = !time_f.empty();
+    if (has_time) {
+      const auto [ptr, ec] = std::from_chars(time_f.data(), time_f.data() + time_f.size(), t);
+      if (ec != std::errc() || ptr != time_f.data() + time_f.size() || !std::isfinite(t))
+        return reject(row_reason::kMalformedTime, time_col,
+                      "time_s '" + std::string(time_f) + "' is not a finite number");
+    }
+
+    const int n = shape.steps;
+    const int nres = static_cast<int>(result_columns_.size());
+    bool going = true;
+    std::size_t bits = 0;
+    int len = 0;
+    for (int k = 0; k < std::max(n, nres); ++k) {
+      const std::string_view f = k < nres ? res[k] : std::string_view();
+      const int rc = k < nres ? result_columns_[static_cast<std::size_t>(k)] : -1;
+      if (k >= n) {
+        if (!f.empty())
+          return reject(row_reason::kResultBeyondSteps, rc,
+                        "result '" + std::string(f) + "' for step " + std::to_string(k + 1) +
+                            ", but sequence '" + std::string(seq_f) + "' has " +
+                            std::to_string(n) + " steps");
+        continue;
+      }
+      if (!going) {
+        if (!f.empty())
+          return reject(row_reason::kResultAfterEnd, rc,
+                        "result '" + std::string(f) + "' at step " + std::to_string(k + 1) +
+                            ", but the shot ended with bright at step " + std::to_string(len));
+        continue;
+      }
+      if (f.empty()) {
+        if (rc < 0)
+          return reject(row_reason::kMissingResult, -1,
+                        "sequence '" + std::string(seq_f) + "' reaches step " +
+                            std::to_string(k + 1) + " but the header has no r" +
+                            std::to_string(k + 1) + " column");
+        return reject(row_reason::kMissingResult, rc,
+                      "no result at step " + std::to_string(k + 1) + ", but the shot " +
+                          (destructive_ ? "was dark at every earlier step" : "runs every step") +
+                          " and must have gone on");
+      }
+      const int r = parse_result(f, threshold_);
+      if (r == -2)
+        throw InputError(file_, where(rc),
+                         "photon count '" + std::string(f) +
+                             "' but no threshold: set detection.threshold in the protocol or "
+                             "give a threshold");
+      if (r < 0)
+        return reject(row_reason::kMalformedResult, rc,
+                      "result '" + std::string(f) +
+                          "' is neither dark, bright nor a non-negative integer count");
+      bits = (bits << 1) | static_cast<std::size_t>(r);
+      ++len;
+      if (r == 1 && destructive_) going = false;
+    }
+    const int cell = shape.code_to_cell[(std::size_t{1} << len) | bits];
+    MACROREAL_CHECK(cell >= 0);
+
+    // Accepted: count it and remember the shot and the time.
+    result_.counts.sequences[static_cast<std::size_t>(s)].counts[static_cast<std::size_t>(cell)] += 1.0;
+    ++rows.used;
+    if (has_shot) {
+      const std::size_t word = static_cast<std::size_t>(shot >> 6);
+      if (word >= shape.seen.size()) shape.seen.resize(std::max(word + 1, 2 * shape.seen.size()), 0);
+      shape.seen[word] |= std::uint64_t{1} << (shot & 63);
+    }
+    if (has_time) {
+      auto& tr = result_.time_ranges[static_cast<std::size_t>(s)];
+      if (!tr.any) tr = {true, t, t};
+      else {
+        if (t < tr.first) tr.first = t;
+        if (t > tr.last) tr.last = t;
+      }
+    }
+  }
+
+  std::string file_;
+  OutcomeTableOptions options_;
+  std::optional<double> threshold_;
+  bool destructive_ = true;
+  OutcomeTableRead result_;
+  std::vector<SequenceShape> shapes_;
+  std::unique_ptr<NameTable> names_;
+  bool have_header_ = false;
+  long line_no_ = 0;
+  std::vector<int> roles_;
+  int seq_col_ = -1, shot_col_ = -1, time_col_ = -1;
+  std::vector<std::string> column_names_;
+  std::vector<int> result_columns_;  // column of r(k+1)
+};
+
+}  // namespace
+
+OutcomeTableRead parse_outcome_table(const std::string& text, const std::string& file_label,
+                                     const Protocol& protocol, const OutcomeTableOptions& options) {
+  CsvParser parser(file_label, protocol, options);
+  parser.lines(text.data(), text.data() + text.size());
+  return parser.finish();
+}
+
+OutcomeTableRead read_outcome_table(const std::string& path, const Protocol& protocol,
+                                    const OutcomeTableOptions& options) {
+  std::unique_ptr<std::FILE, int (*)(std::FILE*)> f(std::fopen(path.c_str(), "rb"), &std::fclose);
+  if (!f) throw InputError(path, "", "cannot open the outcome table: " + std::string(std::strerror(errno)));
+  CsvParser parser(path, protocol, options);
+  const std::size_t block = std::max<std::size_t>(options.block_bytes, 4096);
+  std::vector<char> buf(block);
+  std::size_t carry = 0;  // bytes of an unfinished line at the start of buf
+  for (;;) {
+    if (buf.size() - carry < block / 2) buf.resize(buf.size() * 2);  // a line longer than a block
+    const std::size_t got = std::fread(buf.data() + carry, 1, buf.size() - carry, f.get());
+    const std::size_t have = carry + got;
+    if (got == 0) {
+      if (std::ferror(f.get())) throw InputError(path, "", "read error");
+      parser.lines(buf.data(), buf.data() + have);  // a last line without '\n'
+      break;
+    }
+    // Complete lines end at the last '\n' of the buffer.
+    std::size_t last = have;
+    while (last > 0 && buf[last - 1] != '\n') --last;
+    if (last == 0) {
+      carry = have;
+      continue;
+    }
+    parser.lines(buf.data(), buf.data() + last);
+    carry = have - last;
+    std::memmove(buf.data(), buf.data() + last, carry);
+  }
+  return parser.finish();
+}
+
+// ----------------------------------------------------------------------------------------
+OutcomeTableRead parse_counts_json(const nlohmann::json& doc, const std::string& file_label,
+                                   const Protocol& protocol, const OutcomeTableOptions& options) {
+  OutcomeTableRead r;
+  r.counts = empty_counts(protocol);
+  r.time_ranges.assign(r.counts.sequences.size(), ShotTimeRange{});
+  auto shapes = shapes_of(r.counts);
+  const bool destructive = protocol.readout == Readout::destructive;
+  auto& rows = r.counts.rows;
+
+  if (!doc.is_object()) throw InputError(file_label, "", "a counts file is a JSON object");
+  if (!doc.contains("format") || !doc["format"].is_string() ||
+      doc["format"].get<std::string>() != "macroreal-counts/1")
+    throw InputError(file_label, "format", "format must be \"macroreal-counts/1\"");
+  for (const auto& [key, value] : doc.items())
+    if (key != "format" && key != "counts" && key != "title" && key != "comment")
+      throw InputError(file_label, key, "unknown field");
+  if (!doc.contains("counts") || !doc["counts"].is_object())
+    throw InputError(file_label, "counts", "counts must be an object of sequences");
+
+  auto reject = [&](const char* reason, const std::string& where, const std::string& msg, long n) {
+    if (options.bad_rows == BadRowPolicy::error) throw InputError(file_label, where, msg);
+    rows.read += n;
+    count_reason(rows, reason, n);
+  };
+
+  for (const auto& [seq_name, cells] : doc["counts"].items()) {
+    const std::string seq_where = "counts." + seq_name;
+    if (!cells.is_object())
+      throw InputError(file_label, seq_where, "must be an object of outcome keys -> counts");
+    int s = -1;
+    for (std::size_t i = 0; i < r.counts.sequences.size(); ++i)
+      if (r.counts.sequences[i].name == seq_name) s = static_cast<int>(i);
+    for (const auto& [key, value] : cells.items()) {
+      const std::string where = seq_where + "." + key;
+      long n = 0;
+      bool count_ok = false;
+      if (value.is_number_unsigned()) {
+        n = static_cast<long>(value.get<std::uint64_t>());
+        count_ok = true;
+      } else if (value.is_number_integer() && value.get<std::int64_t>() >= 0) {
+        n = static_cast<long>(value.get<std::int64_t>());
+        count_ok = true;
+      }
+      if (!count_ok) {
+        reject(row_reason::kMalformedCount, where,
+               "count " + value.dump() + " is not a non-negative integer", 1);
+        continue;
+      }
+      if (s < 0) {
+        reject(row_reason::kUnknownSequence, where,
+               "sequence '" + seq_name + "' is not in the protocol", n);
+        continue;
+      }
+      const auto& shape = shapes[static_cast<std::size_t>(s)];
+      // Walk the detector results of the key.
+      std::vector<std::string> tokens;
+      for (std::size_t p = 0;;) {
+        const std::size_t c = key.find(',', p);
+        tokens.push_back(key.substr(p, c == std::string::npos ? std::string::npos : c - p));
+        if (c == std::string::npos) break;
+        p = c + 1;
+      }
+      const char* bad_reason = nullptr;
+      std::string bad_msg;
+      std::size_t bits = 0;
+      int len = 0;
+      bool going = true;
+      for (std::size_t k = 0; k < tokens.size() && !bad_reason; ++k) {
+        const std::string& t = tokens[k];
+        if (static_cast<int>(k) >= shape.steps) {
+          bad_reason = row_reason::kResultBeyondSteps;
+          bad_msg = "result for step " + std::to_string(k + 1) + ", but the sequence has " +
+                    std::to_string(shape.steps) + " steps";
+        } else if (!going) {
+          bad_reason = row_reason::kResultAfterEnd;
+          bad_msg = "result '" + t + "' at step " + std::to_string(k + 1) +
+                    ", but the shot ended with bright at step " + std::to_string(len);
+        } else if (t != "dark" && t != "bright") {
+          bad_reason = row_reason::kMalformedResult;
+          bad_msg = "result '" + t + "' at step " + std::to_string(k + 1) +
+                    " is neither dark nor bright";
+        } else {
+          const int b = t == "bright" ? 1 : 0;
+          bits = (bits << 1) | static_cast<std::size_t>(b);
+          ++len;
+          if (b == 1 && destructive) going = false;
+        }
+      }
+      if (!bad_reason && going && len < shape.steps) {
+        bad_reason = row_reason::kMissingResult;
+        bad_msg = "the key ends at step " + std::to_string(len) + ", but the shot " +
+                  (destructive ? "was dark at every step" : "runs every step") +
+                  " and must have gone on to step " + std::to_string(len + 1);
+      }
+      if (bad_reason) {
+        reject(bad_reason, where, bad_msg, n);
+        continue;
+      }
+      const int cell = shape.code_to_cell[(std::size_t{1} << len) | bits];
+      MACROREAL_CHECK(cell >= 0);
+      r.counts.sequences[static_cast<std::size_t>(s)].counts[static_cast<std::size_t>(cell)] +=
+          static_cast<double>(n);
+      rows.read += n;
+      rows.used += n;
+    }
+  }
+  return r;
+}
+
+OutcomeTableRead read_counts_json(const std::string& path, const Protocol& protocol,
+                                  const OutcomeTableOptions& options) {
+  std::ifstream in(path);
+  if (!in) throw InputError(path, "", "cannot open the counts file");
+  nlohmann::json doc;
+  try {
+    doc = nlohmann::json::parse(in);
+  } catch (const nlohmann::json::parse_error& e) {
+    throw InputError(path, "", std::string("not valid JSON: ") + e.what());
+  }
+  return parse_counts_json(doc, path, protocol, options);
+}
+
+}  // namespace macroreal
