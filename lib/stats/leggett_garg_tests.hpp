@@ -1,0 +1,64 @@
+// One-sided tests of a Leggett-Garg bound, H0: K <= bound (K_3: bound 1; K_n: n - 2), against
+// K > bound. Each returns a p-value, its one-sided Gaussian equivalent sigma = Phi^-1(1 - p)
+// (Boost.Math normal quantile; p is floored at 1e-300, sigma capped accordingly and flagged),
+// and the method name.
+//
+// (a) "z-asymptotic": z = (K^ - bound) / se with the caller's estimate and delta-method SE
+//     (e.g. the pooled MLE of estimator.hpp); p = 1 - Phi(z). Large-sample only.
+// (b) "hoeffding": finite-sample, no normal approximation. Uses the non-pooled linear
+//     estimator L^ = sum_s sum_j c_sj n_sj / N_s of linear_functional.hpp (unbiased; the pooled
+//     MLE is nonlinear under destructive readout, so it is not used here). L^ is a sum of
+//     independent per-shot terms, the term of a shot of sequence s lying in an interval of
+//     width R_s / N_s (R_s = max_j c_sj - min_j c_sj, 2 for a correlator). Hoeffding,
+//     JASA 58:13 (1963), Theorem 2:  P(L^ - E L^ >= t) <= exp(-2 t^2 / sum_s R_s^2 / N_s).
+//     Under H0, E L^ = K <= bound, so p = exp(-2 (L^ - bound)_+^2 / sum_s R_s^2 / N_s).
+// (c) "empirical-bernstein": finite-sample. Per sequence, the shot terms Y (rescaled to [0, 1])
+//     are i.i.d.; Maurer & Pontil, "Empirical Bernstein bounds and sample variance
+//     penalization" (COLT 2009), Theorem 4: with probability >= 1 - d,
+//       E Y >= mean - sqrt(2 V ln(2/d) / n) - 7 ln(2/d) / (3 (n - 1)),  V = sample variance.
+//     A union bound over the S used sequences (d / S each) gives a lower confidence bound
+//     LCB(d) of K; p = inf {d : LCB(d) > bound} (LCB is monotone in d; bisection in log d).
+//     Tighter than Hoeffding when the shot terms have small variance (correlators near +-1).
+// (d) "parametric-bootstrap": the least-favourable null is the constrained MLE of the cell
+//     probabilities with L(p) = bound (linear_functional.hpp; the saturated per-sequence
+//     model, which contains every macrorealist one). Campaigns with the observed shot numbers
+//     are simulated from it; the statistic is the studentised T = (L^ - bound) / se~ with the
+//     smoothed plug-in se~; p = (1 + #{T* >= T}) / (B + 1) (Davison & Hinkley (1997), 4.2.1).
+//     Asymptotically exact; its finite-sample level is checked by the [long] validity study.
+#pragma once
+
+#include <cstdint>
+#include <string>
+
+#include "stats/bootstrap.hpp"
+#include "stats/linear_functional.hpp"
+
+namespace macroreal {
+
+struct TestResult {
+  std::string method;          // "z-asymptotic", "hoeffding", "empirical-bernstein", ...
+  double statistic = 0.0;      // z, L^ - bound, T, ... (method dependent)
+  double p_value = 1.0;
+  double sigma = 0.0;          // Phi^-1(1 - p): one-sided Gaussian equivalent
+  bool sigma_capped = false;   // p underflowed the floor 1e-300
+  std::string note;
+};
+
+// sigma = Phi^-1(1 - p) with the floor described above.
+double gaussian_sigma(double p_value, bool* capped = nullptr);
+
+TestResult lg_z_test(double estimate, double std_error, double bound);
+TestResult lg_hoeffding_test(const CellCounts& counts, const LinearFunctional& k, double bound);
+TestResult lg_empirical_bernstein_test(const CellCounts& counts, const LinearFunctional& k,
+                                       double bound);
+
+struct ParametricBootstrapOptions {
+  long replicates = 9999;
+  std::uint64_t seed = 0x6d726c67ULL;
+  double pseudo_count = 0.5;   // smoothing of the constrained fit (linear_functional.hpp)
+  int threads = 0;             // 0: OpenMP default; the result does not depend on it
+};
+TestResult lg_parametric_bootstrap_test(const CellCounts& counts, const LinearFunctional& k,
+                                        double bound, const ParametricBootstrapOptions& options = {});
+
+}  // namespace macroreal

@@ -1,0 +1,49 @@
+// Tests of no-signalling in time, S = P_B(+) - sum_a P_AB(a, +) (DESIGN.md section 2).
+//
+//   score test ("score"): two-sided test of S = 0 with the constrained MLE under S = 0
+//     (linear_functional.hpp) supplying the null variance: z = S^ / se_0. For two independent
+//     binomials this is exactly the pooled two-proportion z test (Agresti, Categorical Data
+//     Analysis (2013), 3.1); it also covers destructive readout, where sum_a P_AB(a, +) is the
+//     sum of two proportions from the sequences AB+ and AB- (different shots), which is not a
+//     single binomial.
+//   Barnard's exact unconditional test ("barnard-exact"): two independent binomials
+//     x1 ~ Bin(n1, p1) (B alone) and x2 ~ Bin(n2, p2) (B = + in [A, B] runs), H0: p1 = p2 = pi;
+//     statistic the pooled z (Barnard, Biometrika 34:123 (1947)); p = max over pi in [0, 1] of
+//     P_pi(|Z| >= |z_obs|), maximised over a grid of 400 points plus golden-section refinement
+//     around the three best, as in scipy.stats.barnard_exact (which uses shgo instead). Ties
+//     |Z| = |z_obs| (within 1e-12 relative) count as extreme. The two binomials exist when the
+//     readout is non-destructive (all [A, B] shots show B); under destructive readout the
+//     [A, B] arm is a sum of two binomial proportions and only the score test applies
+//     (nsit_binomial_arms throws UnsupportedError saying so).
+//   TOST ("tost"): equivalence |S| < margin by two one-sided score tests at S = -margin and
+//     S = +margin, p = max of the two (Schuirmann, J. Pharmacokinet. Biopharm. 15:657 (1987));
+//     the null variances come from the constrained fits at S = +-margin.
+#pragma once
+
+#include <string>
+
+#include "stats/campaign_counts.hpp"
+#include "stats/leggett_garg_tests.hpp"
+#include "stats/linear_functional.hpp"
+
+namespace macroreal {
+
+// Two-sided score test of functional == 0 (any linear functional, e.g. nsit_functional).
+TestResult nsit_score_test(const CellCounts& counts, const LinearFunctional& s);
+
+// Two-sided Barnard exact test of p1 = p2; throws DomainError unless 0 <= x <= n, n >= 1, and
+// UnsupportedError when (n1 + 1)(n2 + 1) > 4e6 (the score test is accurate there).
+TestResult barnard_exact_test(long x1, long n1, long x2, long n2);
+
+struct BinomialArms {
+  long x1 = 0, n1 = 0;  // B = + among runs of [B] alone
+  long x2 = 0, n2 = 0;  // B = + among runs of [A, B]
+};
+// The two binomial arms of NSIT from -> to; UnsupportedError under destructive readout.
+BinomialArms nsit_binomial_arms(const CampaignCounts& counts, const std::string& from,
+                                const std::string& to);
+
+// TOST for |S| < margin (margin > 0 and inside the functional's range).
+TestResult nsit_tost(const CellCounts& counts, const LinearFunctional& s, double margin);
+
+}  // namespace macroreal
