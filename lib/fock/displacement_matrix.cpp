@@ -46,6 +46,10 @@ void check_args(int dim, cplx beta) {
 
 }  // namespace
 
+void detail::normalised_laguerre(int k, double x, int len, double* out) {
+  normalised_laguerre_diagonal(k, x, len, out);
+}
+
 Eigen::VectorXcd displacement_diagonal(int dim, int k, cplx beta) {
   check_args(dim, beta);
   const int ak = std::abs(k);

@@ -33,4 +33,10 @@ Eigen::MatrixXcd displacement_matrix(int dim, cplx beta);
 // dim - |k|, entry j being <j + k|D|j> for k >= 0 and <j|D|j - k> for k < 0.
 Eigen::VectorXcd displacement_diagonal(int dim, int k, cplx beta);
 
+namespace detail {
+// The normalised Laguerre functions f_n^{(k)}(x), n = 0..len-1 (k >= 0, x >= 0), written to
+// out[0..len-1]; orthonormal on [0, inf) in x. For k = 0: e^{-x/2} L_n(x).
+void normalised_laguerre(int k, double x, int len, double* out);
+}  // namespace detail
+
 }  // namespace macroreal
