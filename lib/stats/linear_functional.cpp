@@ -217,19 +217,23 @@ ConstrainedFit constrained_fit(const CellCounts& counts, const LinearFunctional&
     for (double cj : c) mu_low = std::max(mu_low, -lambda * cj);
     auto h = [&](double u) {  // sum_j m_j / (mu_low + u + lambda c_j) - 1, decreasing in u > 0
       double t = 0.0;
-      for (std::size_t j = 0; j < c.size(); ++j) t += (n[j] + pseudo_count) / (mu_low + u + lambda * c[j]);
+      for (std::size_t j = 0; j < c.size(); ++j) t += (n[j] + pseudo_count) / ((mu_low + lambda * c[j]) + u);
       return t - 1.0;
     };
-    double a = 0.0, b = mass[s];  // h(0+) = +inf, h(mass) <= 0
-    for (int it = 0; it < 200 && (b - a) > 1e-15 * b; ++it) {
+    // h(0+) = +inf, h(mass) <= 0. Bisection in log u: with a tiny pseudo count the root can
+    // sit within 1e-12 of the pole, where a linear bisection would lose all relative accuracy.
+    double a = std::log(1e-300), b = std::log(mass[s]);
+    for (int it = 0; it < 200 && (b - a) > 1e-15; ++it) {
       const double mid = 0.5 * (a + b);
-      (h(mid) > 0.0 ? a : b) = mid;
+      (h(std::exp(mid)) > 0.0 ? a : b) = mid;
     }
-    const double mu = mu_low + 0.5 * (a + b);
+    // Denominators as (mu_low + lambda c_j) + u: the bracket is exactly 0 for the extreme cell,
+    // so u keeps its full relative precision there.
+    const double u = std::exp(0.5 * (a + b));
     double sum = 0.0, val = 0.0;
     auto& p = fit.probabilities[s];
     for (std::size_t j = 0; j < c.size(); ++j) {
-      p[j] = (n[j] + pseudo_count) / (mu + lambda * c[j]);
+      p[j] = (n[j] + pseudo_count) / ((mu_low + lambda * c[j]) + u);
       sum += p[j];
     }
     for (std::size_t j = 0; j < c.size(); ++j) {

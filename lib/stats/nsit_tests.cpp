@@ -22,7 +22,7 @@ TestResult with_sigma(TestResult r) {
 double null_se(const CellCounts& counts, const LinearFunctional& f, double target) {
   // A vanishing pseudo count: the fit is then the plain constrained MLE (for two binomials,
   // the pooled proportion) while staying well defined when a cell is empty.
-  const ConstrainedFit fit = constrained_fit(counts, f, target, 1e-9);
+  const ConstrainedFit fit = constrained_fit(counts, f, target, 1e-12);
   return std::sqrt(f.variance_at(fit.probabilities, counts));
 }
 
