@@ -20,6 +20,10 @@ struct ProtocolReadOptions {
 };
 
 Protocol read_protocol(const std::string& path, const ProtocolReadOptions& options = {});
+// The text of a protocol file (e.g. read from standard input by the program); `file_label`
+// names it in messages ("<stdin>"). JSON syntax errors give the line and column.
+Protocol parse_protocol_text(const std::string& text, const std::string& file_label,
+                             const ProtocolReadOptions& options = {});
 Protocol parse_protocol(const nlohmann::json& doc, const std::string& file_label,
                         const ProtocolReadOptions& options = {});
 // A state object (the "state" field or a "prepared.from"), used also for nested states.
