@@ -8,6 +8,7 @@
 #include "stats/outcome_table_reader.hpp"
 
 #include <algorithm>
+#include <bit>
 #include <cerrno>
 #include <charconv>
 #include <cmath>
@@ -17,6 +18,10 @@
 #include <fstream>
 #include <memory>
 #include <string_view>
+
+#if defined(__SSE2__)
+#include <emmintrin.h>
+#endif
 
 #include "core/error.hpp"
 
@@ -33,6 +38,47 @@ BadRowPolicy parse_bad_row_policy(const std::string& s) {
 namespace {
 
 constexpr int kMaxSteps = 20;
+// Every buffer handed to CsvParser::lines has this many readable bytes after its end, with
+// no '\n' among them: lines are scanned 64 bytes at a time and short fields are loaded as
+// 8-byte words.
+constexpr std::size_t kPadding = 64;
+
+// Bit masks of the commas and line feeds among the 64 bytes at p (bit i = byte p[i]).
+inline void separator_masks(const char* p, std::uint64_t& commas, std::uint64_t& newlines) {
+#if defined(__SSE2__)
+  const __m128i comma = _mm_set1_epi8(','), newline = _mm_set1_epi8('\n');
+  commas = newlines = 0;
+  for (int i = 0; i < 4; ++i) {
+    const __m128i v = _mm_loadu_si128(reinterpret_cast<const __m128i*>(p + 16 * i));
+    commas |= std::uint64_t{static_cast<std::uint32_t>(_mm_movemask_epi8(_mm_cmpeq_epi8(v, comma)))} << (16 * i);
+    newlines |= std::uint64_t{static_cast<std::uint32_t>(_mm_movemask_epi8(_mm_cmpeq_epi8(v, newline)))} << (16 * i);
+  }
+#else
+  commas = newlines = 0;
+  for (int i = 0; i < 64; ++i) {
+    commas |= std::uint64_t{p[i] == ','} << i;
+    newlines |= std::uint64_t{p[i] == '\n'} << i;
+  }
+#endif
+}
+
+// The first n <= 8 bytes at p as a word, byte i in bits 8i..8i+7 (the bytes after them
+// may be read, not used).
+inline std::uint64_t short_word(const char* p, std::size_t n) {
+  std::uint64_t w;
+  std::memcpy(&w, p, 8);
+  if constexpr (std::endian::native == std::endian::big) w = __builtin_bswap64(w);
+  return n >= 8 ? w : w & ((std::uint64_t{1} << (8 * n)) - 1);
+}
+
+// The same word for a string of at most 8 bytes (longer ones: their first 8).
+constexpr std::uint64_t word_of(std::string_view s) {
+  std::uint64_t w = 0;
+  for (std::size_t i = 0; i < s.size() && i < 8; ++i)
+    w |= std::uint64_t{static_cast<unsigned char>(s[i])} << (8 * i);
+  return w;
+}
+constexpr std::uint64_t kDarkWord = word_of("dark"), kBrightWord = word_of("bright");
 
 // Per-sequence facts the row check needs.
 struct SequenceShape {
@@ -72,14 +118,30 @@ class NameTable {
     std::size_t cap = 8;
     while (cap < 2 * names_.size()) cap *= 2;
     slots_.assign(cap, -1);
+    for (const auto& n : names_) {
+      words_.push_back(word_of(n));
+      short_names_ = short_names_ && n.size() <= 8;
+    }
     for (std::size_t i = 0; i < names_.size(); ++i) {
       std::size_t h = hash(names_[i]) & (cap - 1);
       while (slots_[h] >= 0) h = (h + 1) & (cap - 1);
       slots_[h] = static_cast<int>(i);
     }
   }
+  // `s` must have 8 readable bytes from its start (the parser's padding guarantees it).
   int find(std::string_view s) const {
     const std::size_t mask = slots_.size() - 1;
+    if (short_names_) {  // all names fit a word: compare words, no byte loop
+      if (s.size() > 8) return -1;
+      const std::uint64_t w = short_word(s.data(), s.size());
+      for (std::size_t h = word_hash(w) & mask;; h = (h + 1) & mask) {
+        const int i = slots_[h];
+        if (i < 0) return -1;
+        if (words_[static_cast<std::size_t>(i)] == w &&
+            names_[static_cast<std::size_t>(i)].size() == s.size())
+          return i;
+      }
+    }
     for (std::size_t h = hash(s) & mask;; h = (h + 1) & mask) {
       const int i = slots_[h];
       if (i < 0) return -1;
@@ -88,12 +150,19 @@ class NameTable {
   }
 
  private:
-  static std::size_t hash(std::string_view s) {
+  std::size_t hash(std::string_view s) const {
+    if (short_names_) return word_hash(word_of(s));
     std::uint64_t h = 1469598103934665603ull;  // FNV-1a
     for (unsigned char c : s) h = (h ^ c) * 1099511628211ull;
     return static_cast<std::size_t>(h ^ (h >> 29));
   }
+  static std::size_t word_hash(std::uint64_t w) {
+    w *= 0x9E3779B97F4A7C15ull;
+    return static_cast<std::size_t>(w ^ (w >> 31));
+  }
   std::vector<std::string> names_;
+  std::vector<std::uint64_t> words_;
+  bool short_names_ = true;
   std::vector<int> slots_;
 };
 
@@ -103,9 +172,10 @@ std::optional<double> threshold_of(const Protocol& protocol, const OutcomeTableO
 
 // Parses "dark" / "bright" / a non-negative integer count. Returns 0 dark, 1 bright,
 // -1 malformed, -2 a count with no threshold.
+// `f` must have 8 readable bytes from its start.
 int parse_result(std::string_view f, const std::optional<double>& threshold) {
-  if (f == "dark") return 0;
-  if (f == "bright") return 1;
+  if (f.size() == 4 && short_word(f.data(), 4) == kDarkWord) return 0;
+  if (f.size() == 6 && short_word(f.data(), 6) == kBrightWord) return 1;
   if (f.empty() || f.size() > 18) return -1;
   std::uint64_t v = 0;
   for (char c : f) {
@@ -114,6 +184,40 @@ int parse_result(std::string_view f, const std::optional<double>& threshold) {
   }
   if (!threshold) return -2;
   return static_cast<double>(v) <= *threshold ? 0 : 1;
+}
+
+// A finite decimal number. Fast path (Clinger): at most 15 digits with an optional point,
+// value = mantissa / 10^fraction_digits, both exact doubles, so the quotient is correctly
+// rounded, the same double std::from_chars gives; anything else goes to std::from_chars.
+bool parse_time(std::string_view f, double& t) {
+  static constexpr double kPow10[16] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                        1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+  const char* p = f.data();
+  const char* e = p + f.size();
+  const bool negative = p < e && *p == '-';
+  if (negative) ++p;
+  std::uint64_t m = 0;
+  int digits = 0, fraction = -1;
+  bool fast = p < e;
+  for (; fast && p < e; ++p) {
+    const char c = *p;
+    if (c >= '0' && c <= '9') {
+      m = m * 10 + static_cast<std::uint64_t>(c - '0');
+      ++digits;
+      if (fraction >= 0) ++fraction;
+    } else if (c == '.' && fraction < 0) {
+      fraction = 0;
+    } else {
+      fast = false;
+    }
+  }
+  if (fast && digits > 0 && digits <= 15) {
+    t = static_cast<double>(m) / kPow10[fraction < 0 ? 0 : fraction];
+    if (negative) t = -t;
+    return true;
+  }
+  const auto [ptr, ec] = std::from_chars(f.data(), f.data() + f.size(), t);
+  return ec == std::errc() && ptr == f.data() + f.size() && std::isfinite(t);
 }
 
 void count_reason(RowSummary& rows, const char* reason, long n = 1) {
@@ -138,15 +242,25 @@ class CsvParser {
   }
 
   // Parses the complete lines in [begin, end) (each ends with '\n', except possibly the
-  // last one at the end of input).
+  // last one at the end of input); kPadding readable bytes without '\n' follow `end`.
   void lines(const char* begin, const char* end) {
     const char* p = begin;
     while (p < end) {
-      const char* nl = static_cast<const char*>(std::memchr(p, '\n', static_cast<std::size_t>(end - p)));
-      const char* line_end = nl ? nl : end;
+      std::uint64_t commas, newlines;
+      separator_masks(p, commas, newlines);
+      const char* line_end;
+      bool short_line = newlines != 0;
+      if (short_line) {
+        line_end = p + __builtin_ctzll(newlines);
+        if (line_end > end) line_end = end;
+      } else {
+        const char* nl = static_cast<const char*>(std::memchr(p, '\n', static_cast<std::size_t>(end - p)));
+        line_end = nl ? nl : end;
+        short_line = line_end - p < 64;
+      }
       ++line_no_;
-      line(p, line_end);
-      p = nl ? nl + 1 : end;
+      line(p, line_end, short_line ? commas : 0, short_line);
+      p = line_end + 1;
     }
   }
 
@@ -158,7 +272,8 @@ class CsvParser {
  private:
   enum Role : int { kIgnore = -1, kSequence = -2, kShot = -3, kTime = -4 };  // >= 0: result k
 
-  void line(const char* b, const char* e) {
+  // `commas` is the comma mask of the line when `short_line` (the line has < 64 bytes).
+  void line(const char* b, const char* e, std::uint64_t commas, bool short_line) {
     if (e > b && e[-1] == '\r') --e;
     if (b == e) return;  // blank line
     if (*b == '#') return;
@@ -166,7 +281,7 @@ class CsvParser {
       header(b, e);
       return;
     }
-    row(b, e);
+    row(b, e, commas, short_line);
   }
 
   void header(const char* b, const char* e) {
@@ -214,6 +329,8 @@ class CsvParser {
         throw InputError(file_, where, "the header has r" + std::to_string(result_cols.size()) +
                                            " but no r" + std::to_string(k + 1));
     result_columns_ = result_cols;
+    field_begin_.assign(names.size(), nullptr);
+    field_end_.assign(names.size(), nullptr);
     have_header_ = true;
   }
 
@@ -225,36 +342,58 @@ class CsvParser {
     return w;
   }
 
+  void too_many_fields(int ncols) {
+    reject(row_reason::kTooManyFields, -1,
+           "the row has more fields than the header's " + std::to_string(ncols));
+  }
+
   // A rejected row: throw (policy error) or count it (policy skip).
   void reject(const char* reason, int column, const std::string& detail) {
     if (options_.bad_rows == BadRowPolicy::error) throw InputError(file_, where(column), detail);
     count_reason(result_.counts.rows, reason);
   }
 
-  void row(const char* b, const char* e) {
+  void row(const char* b, const char* e, std::uint64_t commas, bool short_line) {
     auto& rows = result_.counts.rows;
     ++rows.read;
-    std::string_view seq_f, shot_f, time_f;
-    std::string_view res[kMaxSteps];
     const int seq_col = seq_col_, shot_col = shot_col_, time_col = time_col_;
     const int ncols = static_cast<int>(roles_.size());
+    // Split at commas; fields missing at the end of a short row stay empty.
+    const char** fb = field_begin_.data();
+    const char** fe = field_end_.data();
     int col = 0;
-    for (const char* p = b;; ++col) {
-      const char* c = static_cast<const char*>(std::memchr(p, ',', static_cast<std::size_t>(e - p)));
-      const char* fe = c ? c : e;
-      if (col >= ncols)
-        return reject(row_reason::kTooManyFields, -1,
-                      "the row has more fields than the header's " + std::to_string(ncols));
-      const int role = roles_[static_cast<std::size_t>(col)];
-      const std::string_view f(p, static_cast<std::size_t>(fe - p));
-      if (role >= 0) res[role] = f;
-      else if (role == kSequence) seq_f = f;
-      else if (role == kShot) shot_f = f;
-      else if (role == kTime) time_f = f;
-      if (!c) break;
-      p = c + 1;
+    const char* start = b;
+    if (short_line) {
+      const std::size_t len = static_cast<std::size_t>(e - b);  // < 64
+      for (std::uint64_t m = commas & ((std::uint64_t{1} << len) - 1); m != 0; m &= m - 1) {
+        if (col >= ncols - 1) return too_many_fields(ncols);
+        const char* c = b + __builtin_ctzll(m);
+        fb[col] = start;
+        fe[col] = c;
+        ++col;
+        start = c + 1;
+      }
+      fb[col] = start;
+      fe[col] = e;
+      ++col;
+    } else {
+      for (const char* q = b;; ++q) {
+        if (q == e || *q == ',') {
+          if (col >= ncols) return too_many_fields(ncols);
+          fb[col] = start;
+          fe[col] = q;
+          ++col;
+          if (q == e) break;
+          start = q + 1;
+        }
+      }
     }
-    // Columns missing at the end of a short row stay empty.
+    for (; col < ncols; ++col) fb[col] = fe[col] = e;
+    auto field = [&](int c) {
+      return c < 0 ? std::string_view()
+                   : std::string_view(fb[c], static_cast<std::size_t>(fe[c] - fb[c]));
+    };
+    const std::string_view seq_f = field(seq_col), shot_f = field(shot_col), time_f = field(time_col);
 
     const int s = names_->find(seq_f);
     if (s < 0)
@@ -265,8 +404,12 @@ class CsvParser {
     std::uint64_t shot = 0;
     const bool has_shot = !shot_f.empty();
     if (has_shot) {
-      const auto [ptr, ec] = std::from_chars(shot_f.data(), shot_f.data() + shot_f.size(), shot);
-      if (ec != std::errc() || ptr != shot_f.data() + shot_f.size() || shot >= (std::uint64_t{1} << 32))
+      bool ok = shot_f.size() <= 10;
+      for (char ch : shot_f) {
+        ok = ok && ch >= '0' && ch <= '9';
+        shot = shot * 10 + static_cast<std::uint64_t>(ch - '0');
+      }
+      if (!ok || shot >= (std::uint64_t{1} << 32))
         return reject(row_reason::kMalformedShot, shot_col,
                       "shot '" + std::string(shot_f) + "' is not a non-negative integer below 2^32");
       const std::size_t word = static_cast<std::size_t>(shot >> 6);
@@ -278,8 +421,7 @@ class CsvParser {
     double t = 0.0;
     const bool has_time = !time_f.empty();
     if (has_time) {
-      const auto [ptr, ec] = std::from_chars(time_f.data(), time_f.data() + time_f.size(), t);
-      if (ec != std::errc() || ptr != time_f.data() + time_f.size() || !std::isfinite(t))
+      if (!parse_time(time_f, t))
         return reject(row_reason::kMalformedTime, time_col,
                       "time_s '" + std::string(time_f) + "' is not a finite number");
     }
@@ -290,8 +432,8 @@ class CsvParser {
     std::size_t bits = 0;
     int len = 0;
     for (int k = 0; k < std::max(n, nres); ++k) {
-      const std::string_view f = k < nres ? res[k] : std::string_view();
       const int rc = k < nres ? result_columns_[static_cast<std::size_t>(k)] : -1;
+      const std::string_view f = field(rc);
       if (k >= n) {
         if (!f.empty())
           return reject(row_reason::kResultBeyondSteps, rc,
@@ -366,6 +508,7 @@ class CsvParser {
   int seq_col_ = -1, shot_col_ = -1, time_col_ = -1;
   std::vector<std::string> column_names_;
   std::vector<int> result_columns_;  // column of r(k+1)
+  std::vector<const char*> field_begin_, field_end_;  // the current row's fields
 };
 
 }  // namespace
@@ -373,7 +516,9 @@ class CsvParser {
 OutcomeTableRead parse_outcome_table(const std::string& text, const std::string& file_label,
                                      const Protocol& protocol, const OutcomeTableOptions& options) {
   CsvParser parser(file_label, protocol, options);
-  parser.lines(text.data(), text.data() + text.size());
+  std::string padded = text;
+  padded.append(kPadding, '\0');
+  parser.lines(padded.data(), padded.data() + text.size());
   return parser.finish();
 }
 
@@ -383,12 +528,17 @@ OutcomeTableRead read_outcome_table(const std::string& path, const Protocol& pro
   if (!f) throw InputError(path, "", "cannot open the outcome table: " + std::string(std::strerror(errno)));
   CsvParser parser(path, protocol, options);
   const std::size_t block = std::max<std::size_t>(options.block_bytes, 4096);
-  std::vector<char> buf(block);
+  std::vector<char> buf(block + kPadding);
+  std::size_t capacity = block;
   std::size_t carry = 0;  // bytes of an unfinished line at the start of buf
   for (;;) {
-    if (buf.size() - carry < block / 2) buf.resize(buf.size() * 2);  // a line longer than a block
-    const std::size_t got = std::fread(buf.data() + carry, 1, buf.size() - carry, f.get());
+    if (capacity - carry < block / 2) {  // a line longer than half a block
+      capacity *= 2;
+      buf.resize(capacity + kPadding);
+    }
+    const std::size_t got = std::fread(buf.data() + carry, 1, capacity - carry, f.get());
     const std::size_t have = carry + got;
+    std::memset(buf.data() + have, 0, kPadding);
     if (got == 0) {
       if (std::ferror(f.get())) throw InputError(path, "", "read error");
       parser.lines(buf.data(), buf.data() + have);  // a last line without '\n'

@@ -317,3 +317,33 @@ TEST_CASE("Outcome table: a 10^6-row file streams in bounded memory", "[stats]")
 #endif
   std::remove(path.c_str());
 }
+
+TEST_CASE("Outcome table: long lines and lines longer than a read block", "[stats]") {
+  // Lines over 64 bytes take the byte-by-byte split; a 10 000-byte line exceeds the 4096-byte
+  // block and makes the reader grow its buffer. Expected counts by construction.
+  const std::string note(10000, 'x');
+  const std::string text = "sequence,shot,time_s,r1,r2,note\n"
+                           "AB+,0,0.5,dark,dark," + std::string(100, 'y') + "\n"
+                           "AB+,1,0.75,dark,bright," + note + "\n"
+                           "AB+,2,1.0,bright,," + note + ",extra\n";
+  const auto p = destructive_protocol();
+  CHECK_THROWS_WITH(parse_outcome_table(text, "l.csv", p),
+                    Catch::Contains("l.csv: line 4") && Catch::Contains("more fields"));
+  const std::string good = text.substr(0, text.rfind(",extra")) + "\n";
+  const std::string path = temp_path("macroreal-long-lines");
+  {
+    std::ofstream out(path, std::ios::binary);
+    out << good;
+  }
+  OutcomeTableOptions o;
+  o.block_bytes = 4096;
+  const auto r = read_outcome_table(path, p, o);
+  std::remove(path.c_str());
+  CHECK(r.counts.rows.used == 3);
+  CHECK(cell(r, "AB+", {+1, +1}) == 1);
+  CHECK(cell(r, "AB+", {+1, -1}) == 1);
+  CHECK(cell(r, "AB+", {-1}) == 1);
+  CHECK(r.time_ranges[0].last == 1.0);
+  const auto r2 = parse_outcome_table(good, "l.csv", p);
+  CHECK(r2.counts.rows.used == 3);
+}

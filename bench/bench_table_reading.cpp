@@ -1,0 +1,154 @@
+// Speed of the outcome table reader against `wc -l` on the same file, and of one evaluation
+// of the campaign estimator (the bootstrap's inner call).
+//
+// BM_OutcomeTable_Read10M generates (once, outside the timed loop) a deterministic
+// 10^7-row destructive three-step table in /tmp, times read_outcome_table on it, then times
+// `wc -l` on the same file in the same run (std::system, best of 3) and reports both
+// throughputs in MB/s and their ratio, by wall clock and by CPU time (getrusage).
+#include <chrono>
+#include <cstdint>
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <string>
+#include <utility>
+
+#include <sys/resource.h>
+
+#include <benchmark/benchmark.h>
+
+#include "stats/estimator.hpp"
+#include "stats/outcome_table_reader.hpp"
+
+using namespace macroreal;
+
+namespace {
+
+SequenceSpec seq(std::string name, std::vector<std::string> steps, std::vector<int> dark_is) {
+  SequenceSpec s;
+  s.name = std::move(name);
+  s.steps = std::move(steps);
+  s.dark_is = std::move(dark_is);
+  return s;
+}
+
+Protocol three_step_protocol() {
+  Protocol p;
+  p.readout = Readout::destructive;
+  p.sequences = {seq("ABC++", {"A", "B", "C"}, {+1, +1, +1}), seq("ABC+-", {"A", "B", "C"}, {+1, -1, +1}),
+                 seq("ABC-+", {"A", "B", "C"}, {-1, +1, +1}), seq("ABC--", {"A", "B", "C"}, {-1, -1, +1})};
+  return p;
+}
+
+const std::string kPath = "/tmp/macroreal-bench-table-10M.csv";
+constexpr long kRows = 10000000;
+
+// Writes the table with a fixed 64-bit LCG (Knuth's MMIX constants), so the bytes are the
+// same on every run. Invented data.
+void generate_table() {
+  std::FILE* f = std::fopen(kPath.c_str(), "wb");
+  if (!f) std::abort();
+  std::fputs("# invented benchmark table\nsequence,shot,time_s,r1,r2,r3\n", f);
+  const char* names[4] = {"ABC++", "ABC+-", "ABC-+", "ABC--"};
+  const char* results[4] = {"bright,,", "dark,bright,", "dark,dark,bright", "dark,dark,dark"};
+  std::uint64_t x = 42;
+  long shot[4] = {0, 0, 0, 0};
+  char line[128];
+  for (long i = 0; i < kRows; ++i) {
+    x = x * 6364136223846793005ull + 1442695040888963407ull;
+    const int s = static_cast<int>(i % 4), r = static_cast<int>((x >> 33) % 4);
+    const int n = std::snprintf(line, sizeof line, "%s,%ld,%.6f,%s\n", names[s], shot[s]++,
+                                2.5e-3 * static_cast<double>(i), results[r]);
+    std::fwrite(line, 1, static_cast<std::size_t>(n), f);
+  }
+  std::fclose(f);
+}
+
+void ensure_table() {
+  static bool done = false;
+  if (done) return;
+  generate_table();
+  done = true;
+}
+
+double cpu_seconds(int who) {
+  rusage u{};
+  getrusage(who, &u);
+  return static_cast<double>(u.ru_utime.tv_sec + u.ru_stime.tv_sec) +
+         1e-6 * static_cast<double>(u.ru_utime.tv_usec + u.ru_stime.tv_usec);
+}
+
+// Best of 3 runs of `wc -l`: wall seconds and CPU seconds of the child processes (the
+// machine may be shared, so CPU time is the fairer comparison).
+std::pair<double, double> seconds_of_wc() {
+  double wall = 1e300, cpu = 1e300;
+  const std::string cmd = "wc -l " + kPath + " > /dev/null";
+  for (int k = 0; k < 3; ++k) {
+    const double c0 = cpu_seconds(RUSAGE_CHILDREN);
+    const auto t0 = std::chrono::steady_clock::now();
+    if (std::system(cmd.c_str()) != 0) return {-1.0, -1.0};
+    const auto t1 = std::chrono::steady_clock::now();
+    wall = std::min(wall, std::chrono::duration<double>(t1 - t0).count());
+    cpu = std::min(cpu, cpu_seconds(RUSAGE_CHILDREN) - c0);
+  }
+  return {wall, cpu};
+}
+
+void BM_OutcomeTable_Read10M(benchmark::State& state) {
+  ensure_table();
+  const auto protocol = three_step_protocol();
+  const double bytes = static_cast<double>(std::filesystem::file_size(kPath));
+  double wall = 1e300, cpu = 1e300;
+  for (auto _ : state) {
+    const double c0 = cpu_seconds(RUSAGE_SELF);
+    const auto t0 = std::chrono::steady_clock::now();
+    auto r = read_outcome_table(kPath, protocol);
+    const auto t1 = std::chrono::steady_clock::now();
+    cpu = std::min(cpu, cpu_seconds(RUSAGE_SELF) - c0);
+    benchmark::DoNotOptimize(r.counts.rows.used);
+    if (r.counts.rows.used != kRows) state.SkipWithError("wrong row count");
+    wall = std::min(wall, std::chrono::duration<double>(t1 - t0).count());
+  }
+  const auto [wc_wall, wc_cpu] = seconds_of_wc();
+  state.SetBytesProcessed(static_cast<std::int64_t>(bytes) * state.iterations());
+  state.counters["reader_MBps"] = bytes / wall / 1e6;
+  state.counters["wc_l_MBps"] = wc_wall > 0 ? bytes / wc_wall / 1e6 : 0.0;
+  state.counters["ratio_wall"] = wc_wall > 0 ? wc_wall / wall : 0.0;
+  state.counters["ratio_cpu"] = wc_cpu > 0 ? wc_cpu / cpu : 0.0;
+  std::printf("file %.0f MB\n", bytes / 1e6);
+  std::printf("wall: outcome table reader %.0f MB/s, wc -l %.0f MB/s, ratio %.3f\n",
+              bytes / wall / 1e6, bytes / wc_wall / 1e6, wc_wall / wall);
+  std::printf("cpu:  outcome table reader %.0f MB/s, wc -l %.0f MB/s, ratio %.3f\n",
+              bytes / cpu / 1e6, bytes / wc_cpu / 1e6, wc_cpu / cpu);
+}
+BENCHMARK(BM_OutcomeTable_Read10M)->Unit(benchmark::kMillisecond)->Iterations(3);
+
+// One evaluation for a three-time LG campaign plus an NSIT control: 6 two-step sequences
+// and one single-step sequence.
+void BM_Estimator_Evaluate(benchmark::State& state) {
+  Protocol p;
+  p.readout = Readout::destructive;
+  p.sequences = {seq("AB+", {"A", "B"}, {1, 1}), seq("AB-", {"A", "B"}, {-1, 1}),
+                 seq("BC+", {"B", "C"}, {1, 1}), seq("BC-", {"B", "C"}, {-1, 1}),
+                 seq("AC+", {"A", "C"}, {1, 1}), seq("AC-", {"A", "C"}, {-1, 1})};
+  TestSpec lg;
+  lg.kind = TestSpec::Kind::leggett_garg;
+  lg.order = {"A", "B", "C"};
+  p.tests = {lg};
+  auto c = empty_counts(p);
+  for (auto& s : c.sequences)
+    for (std::size_t j = 0; j < s.counts.size(); ++j) s.counts[j] = 100.0 + 37.0 * static_cast<double>(j);
+  const CampaignEstimator est(p, c);
+  const auto counts = CampaignEstimator::counts_of(c);
+  std::vector<double> out;
+  est.evaluate(counts, out);
+  for (auto _ : state) {
+    est.evaluate(counts, out);
+    benchmark::DoNotOptimize(out.data());
+  }
+}
+BENCHMARK(BM_Estimator_Evaluate);
+
+}  // namespace
+
+BENCHMARK_MAIN();
