@@ -1,11 +1,72 @@
-// `macroreal predict`: placeholder until its issue lands (replaced by the real subcommand).
+// `macroreal predict PROTOCOL.json [--json] [-o FILE|-]`: model predictions for a protocol
+// file (lib/protocol/prediction.hpp), printed as a text report or JSON (lib/report).
+// Thin: parse the options, call the library, print. The whole output is built before anything
+// is written, so an error leaves stdout empty (main() prints the message, exit code 2).
+#include <fstream>
+#include <iostream>
+#include <iterator>
+#include <memory>
+
 #include "apps/commands.hpp"
+#include "core/error.hpp"
+#include "protocol/prediction.hpp"
+#include "protocol/protocol_reader.hpp"
+#include "report/prediction_report.hpp"
 
 namespace macroreal::apps {
 
+namespace {
+
+struct PredictArgs {
+  std::string protocol;
+  bool json = false;
+  std::string output = "-";
+};
+
+int run_predict(const PredictArgs& args) {
+  ProtocolReadOptions read;
+  read.generate_needed_sequences = true;
+  read.require_state = true;
+  Protocol proto;
+  if (args.protocol == "-") {
+    const std::string text{std::istreambuf_iterator<char>(std::cin),
+                           std::istreambuf_iterator<char>()};
+    proto = parse_protocol_text(text, "<stdin>", read);
+  } else {
+    proto = read_protocol(args.protocol, read);
+  }
+  const PredictionResult result = predict(proto, PredictOptions{});
+  const std::string text = args.json ? prediction_json_text(result) : prediction_text(result);
+  if (args.output == "-") {
+    std::cout << text << std::flush;
+  } else {
+    std::ofstream out(args.output, std::ios::binary);
+    if (!(out << text) || !out.flush())
+      throw InputError(args.output, "", "cannot write the output file");
+  }
+  return 0;
+}
+
+}  // namespace
+
 void register_predict(CLI::App& app) {
-  auto* cmd = app.add_subcommand("predict", "not available yet");
-  cmd->callback([] { set_action([] { return 2; }); });
+  auto args = std::make_shared<PredictArgs>();
+  auto* cmd = app.add_subcommand(
+      "predict",
+      "Model predictions for a protocol file: the probability of every outcome string of every "
+      "sequence, and for each test K (or S) next to the classical reference models");
+  cmd->add_option("protocol", args->protocol, "protocol file (macroreal-protocol/1); - reads stdin")
+      ->required();
+  cmd->add_flag("--json", args->json, "write JSON (DESIGN.md section 8) instead of the text report");
+  cmd->add_option("-o,--output", args->output, "write to FILE instead of standard output (- : stdout)")
+      ->type_name("FILE|-");
+  cmd->footer(
+      "Examples:\n"
+      "  macroreal predict protocols/lg3_thermal.json\n"
+      "  macroreal predict protocols/lg3_prepared_cat_conclusive.json --json -o cat.json\n"
+      "  cat my_protocol.json | macroreal predict -\n"
+      "Exit codes: 0 success, 2 bad input (the message names the file and the JSON path).");
+  cmd->callback([args] { set_action([args] { return run_predict(*args); }); });
 }
 
 }  // namespace macroreal::apps
