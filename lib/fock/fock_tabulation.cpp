@@ -10,6 +10,7 @@
 #include "core/error.hpp"
 #include "fock/density_matrix_state.hpp"
 #include "fock/displacement_matrix.hpp"
+#include "fock/serial_eigen.hpp"
 
 namespace macroreal {
 
@@ -62,6 +63,7 @@ const LaguerreRule& laguerre_rule(int r) {
 Eigen::MatrixXcd tabulate_from_characteristic(const State& state, int cutoff,
                                               const TabulationOptions& options) {
   check_cutoff(cutoff);
+  const detail::SerialEigenScope serial;
   const int n = cutoff;
   const int support = options.support > 0 ? std::max(options.support, n) : n + 40;
   const int r = (support + n + 1) / 2 + 2;
@@ -174,6 +176,7 @@ Eigen::MatrixXcd cat_density(cplx alpha, double relative_phase_rad, int cutoff) 
 
 Eigen::MatrixXcd squeezed_density(double r, double theta_rad, double nbar, cplx alpha, int cutoff) {
   check_cutoff(cutoff);
+  const detail::SerialEigenScope serial;
   if (!(r >= 0.0) || !(nbar >= 0.0)) throw DomainError("squeezed: r and nbar must be >= 0");
   const double q = nbar / (nbar + 1.0);
   const int n_thermal =
@@ -216,6 +219,7 @@ Eigen::MatrixXcd squeezed_density(double r, double theta_rad, double nbar, cplx 
 }
 
 Eigen::MatrixXcd apply_outcome(const ModularMeasurement& m, int outcome, const Eigen::MatrixXcd& rho) {
+  const detail::SerialEigenScope serial;
   const int n = static_cast<int>(rho.rows());
   const cplx ph = std::polar(1.0, m.phase_rad);
   Eigen::MatrixXcd t0, t1;
