@@ -35,6 +35,18 @@ void check_counts(const CellCounts& c) {
   }
 }
 
+void set_envelope(BootstrapQuantity& r) {
+  bool any = false;
+  for (const Interval* iv : {&r.percentile, &r.basic, &r.studentized, &r.bca}) {
+    if (!iv->valid) continue;
+    if (!any) r.envelope = *iv;
+    r.envelope.lo = std::min(r.envelope.lo, iv->lo);
+    r.envelope.hi = std::max(r.envelope.hi, iv->hi);
+    any = true;
+  }
+  r.envelope.valid = any;
+}
+
 }  // namespace
 
 std::string to_string(IntervalMethod m) {
@@ -43,16 +55,17 @@ std::string to_string(IntervalMethod m) {
     case IntervalMethod::basic: return "basic";
     case IntervalMethod::studentized: return "studentized";
     case IntervalMethod::bca: return "bca";
+    case IntervalMethod::envelope: return "envelope";
   }
   return "?";
 }
 
 IntervalMethod parse_interval_method(const std::string& s) {
   for (auto m : {IntervalMethod::percentile, IntervalMethod::basic, IntervalMethod::studentized,
-                 IntervalMethod::bca})
+                 IntervalMethod::bca, IntervalMethod::envelope})
     if (s == to_string(m)) return m;
   throw DomainError("interval method = \"" + s +
-                    "\", but must be one of percentile, basic, studentized, bca");
+                    "\", but must be one of percentile, basic, studentized, bca, envelope");
 }
 
 std::string to_string(BootstrapStatus s) {
@@ -70,6 +83,8 @@ void BootstrapOptions::validate() const {
     throw DomainError("bootstrap replicates = " + std::to_string(replicates) + ", but must be >= 2");
   if (!(level > 0.0 && level < 1.0))
     throw DomainError("bootstrap level = " + std::to_string(level) + ", but must be in (0, 1)");
+  if (!(smoothing >= 0.0) || !std::isfinite(smoothing))
+    throw DomainError("bootstrap smoothing = " + std::to_string(smoothing) + ", but must be >= 0");
   if (threads < 0)
     throw DomainError("bootstrap threads = " + std::to_string(threads) + ", but must be >= 0");
 }
@@ -80,6 +95,7 @@ const Interval& BootstrapQuantity::interval(IntervalMethod m) const {
     case IntervalMethod::basic: return basic;
     case IntervalMethod::studentized: return studentized;
     case IntervalMethod::bca: return bca;
+    case IntervalMethod::envelope: return envelope;
   }
   return bca;
 }
@@ -97,10 +113,15 @@ double empirical_quantile(const std::vector<double>& sorted, double x) {
 }
 
 void resample_counts(RandomEngine& g, const CellCounts& observed, CellCounts& out) {
-  for (std::size_t h = 0; h < observed.size(); ++h) {
+  resample_counts(g, observed, observed, out);
+}
+
+void resample_counts(RandomEngine& g, const CellCounts& weights, const CellCounts& shots_of,
+                     CellCounts& out) {
+  for (std::size_t h = 0; h < weights.size(); ++h) {
     double n = 0.0;
-    for (double x : observed[h]) n += x;
-    multinomial(g, static_cast<long>(n), observed[h], out[h]);
+    for (double x : shots_of[h]) n += x;
+    multinomial(g, static_cast<long>(n), weights[h], out[h]);
   }
 }
 
@@ -156,9 +177,32 @@ BootstrapResult stratified_bootstrap(const CellCounts& observed, const CountStat
   result.level = options.level;
   result.quantities.resize(m);
 
-  std::vector<double> t(m), se(m, kNaN);
+  std::vector<double> t(m), se(m, kNaN), t0(m);
   statistic.evaluate(observed, t);
-  if (statistic.std_errors) statistic.std_errors(observed, se);
+  // The resampling distribution (smoothed or not) and the statistic's value in it.
+  const double c = options.smoothing;
+  CellCounts weights = observed, centre = observed;
+  for (std::size_t h = 0; h < observed.size(); ++h) {
+    double n = 0.0;
+    for (double x : observed[h]) n += x;
+    const double scale = n / (n + c * static_cast<double>(observed[h].size()));
+    for (std::size_t j = 0; j < observed[h].size(); ++j) {
+      weights[h][j] = observed[h][j] + c;
+      centre[h][j] = (observed[h][j] + c) * scale;  // same shots, smoothed proportions
+    }
+  }
+  if (c > 0.0) statistic.evaluate(centre, t0); else t0 = t;
+  // SEs at counts + c (c = 0: the plain delta-method SE).
+  auto std_errors_at = [&](const CellCounts& counts, CellCounts& work, std::vector<double>& out) {
+    if (c == 0.0) { statistic.std_errors(counts, out); return; }
+    for (std::size_t h = 0; h < counts.size(); ++h)
+      for (std::size_t j = 0; j < counts[h].size(); ++j) work[h][j] = counts[h][j] + c;
+    statistic.std_errors(work, out);
+  };
+  if (statistic.std_errors) {
+    CellCounts work = observed;
+    std_errors_at(observed, work, se);
+  }
 
   // Replicates: value q of replicate b at reps[q * B + b] (and its SE for bootstrap-t).
   std::vector<double> reps(static_cast<std::size_t>(m) * B), rep_se;
@@ -168,7 +212,7 @@ BootstrapResult stratified_bootstrap(const CellCounts& observed, const CountStat
   std::exception_ptr failure;
 #pragma omp parallel num_threads(threads)
   {
-    CellCounts draw = observed;
+    CellCounts draw = observed, work = observed;
     std::vector<double> v(m), s(m);
 #pragma omp for schedule(static)
     for (long blk = 0; blk < blocks; ++blk) {
@@ -176,11 +220,12 @@ BootstrapResult stratified_bootstrap(const CellCounts& observed, const CountStat
         RandomEngine g(derive_seed(options.seed, static_cast<std::uint64_t>(blk)));
         const long end = std::min(B, (blk + 1) * kBlock);
         for (long b = blk * kBlock; b < end; ++b) {
-          resample_counts(g, observed, draw);
+          resample_counts(g, weights, observed, draw);
           statistic.evaluate(draw, v);
-          for (std::size_t q = 0; q < m; ++q) reps[q * B + b] = v[q];
+          // Recentred replicate: t* - t0 + t (identity when not smoothing).
+          for (std::size_t q = 0; q < m; ++q) reps[q * B + b] = c > 0.0 ? v[q] - t0[q] + t[q] : v[q];
           if (want_t) {
-            statistic.std_errors(draw, s);
+            std_errors_at(draw, work, s);
             for (std::size_t q = 0; q < m; ++q) rep_se[q * B + b] = s[q];
           }
         }
@@ -203,6 +248,7 @@ BootstrapResult stratified_bootstrap(const CellCounts& observed, const CountStat
     BootstrapQuantity& r = result.quantities[q];
     r.estimate = t[q];
     r.std_error = se[q];
+    r.smoothed_centre = t0[q];
     r.default_method = options.default_method;
     if (options.keep_replicates) r.replicates.assign(reps.begin() + q * B, reps.begin() + (q + 1) * B);
     if (!std::isfinite(t[q])) {
@@ -242,6 +288,7 @@ BootstrapResult stratified_bootstrap(const CellCounts& observed, const CountStat
       if (options.basic) r.basic = point;
       if (want_t) r.studentized = point;
       if (options.bca) r.bca = point;
+      set_envelope(r);
       continue;
     }
     const double q_lo = empirical_quantile(sorted, alpha), q_hi = empirical_quantile(sorted, 1.0 - alpha);
@@ -300,6 +347,7 @@ BootstrapResult stratified_bootstrap(const CellCounts& observed, const CountStat
         }
       }
     }
+    set_envelope(r);
   }
   return result;
 }

@@ -49,7 +49,8 @@ struct CountStatistic {
   std::function<void(const CellCounts&, std::vector<double>&)> std_errors;
 };
 
-enum class IntervalMethod { percentile, basic, studentized, bca };
+// envelope: the hull of every other interval computed (the most conservative of them).
+enum class IntervalMethod { percentile, basic, studentized, bca, envelope };
 std::string to_string(IntervalMethod m);
 IntervalMethod parse_interval_method(const std::string& s);  // throws DomainError
 
@@ -62,6 +63,13 @@ struct BootstrapOptions {
   bool studentized = true;           // ignored (status note) when the statistic has no SE
   bool bca = true;
   IntervalMethod default_method = IntervalMethod::bca;
+  // Smoothed resampling: pseudo count c added to every cell of the resampling distribution
+  // (replicates are drawn from Multinomial(n_h, (c_h + c) / (n_h + J_h c))) and of the counts
+  // at which standard errors are evaluated. Replicates are recentred by t - t0, t0 the
+  // statistic at the smoothed counts (the bootstrap world's true value), so that every
+  // interval keeps its usual formula. c = 0 is the ordinary bootstrap; c > 0 keeps cells that
+  // are empty in the data possible in the bootstrap world (small counts near 0 or 1).
+  double smoothing = 0.0;
   bool keep_replicates = false;      // keep the replicate values (figures)
   int threads = 0;                   // 0: OpenMP default; the result does not depend on it
   void validate() const;             // throws DomainError
@@ -86,7 +94,8 @@ struct BootstrapQuantity {
   double bootstrap_se = 0.0;         // standard deviation of the replicates (divisor B - 1)
   double bootstrap_bias = 0.0;       // mean of replicates - estimate
   double z0 = 0.0, acceleration = 0.0;
-  Interval percentile, basic, studentized, bca;
+  Interval percentile, basic, studentized, bca, envelope;
+  double smoothed_centre = 0.0;      // t0 (equals the estimate when smoothing = 0)
   IntervalMethod default_method = IntervalMethod::bca;
   BootstrapStatus status = BootstrapStatus::ok;
   long finite_replicates = 0;
@@ -118,5 +127,8 @@ std::vector<double> jackknife_acceleration(const CellCounts& observed,
                                            const CountStatistic& statistic);
 // One replicate draw: resample every stratum of `observed` into `out` (same shape).
 void resample_counts(RandomEngine& g, const CellCounts& observed, CellCounts& out);
+// The same with cell weights `weights` (e.g. smoothed counts) and the shot numbers of `shots_of`.
+void resample_counts(RandomEngine& g, const CellCounts& weights, const CellCounts& shots_of,
+                     CellCounts& out);
 
 }  // namespace macroreal
