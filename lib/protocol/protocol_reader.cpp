@@ -9,6 +9,7 @@
 
 #include "core/error.hpp"
 #include "core/types.hpp"
+#include "phase_space/number_text.hpp"
 #include "phase_space/prepared_state.hpp"
 
 namespace macroreal {
@@ -34,7 +35,7 @@ std::string shown(const json& j) {
   return s;
 }
 
-std::string shown(double x) { return json(x).dump(); }
+std::string shown(double x) { return detail::number_text(x); }
 
 std::string joined(const std::vector<std::string>& names) {
   std::string s;
