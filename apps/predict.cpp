@@ -21,6 +21,7 @@ struct PredictArgs {
   std::string protocol;
   bool json = false;
   std::string output = "-";
+  std::string engine = "weyl";
 };
 
 int run_predict(const PredictArgs& args) {
@@ -35,7 +36,9 @@ int run_predict(const PredictArgs& args) {
   } else {
     proto = read_protocol(args.protocol, read);
   }
-  const PredictionResult result = predict(proto, PredictOptions{});
+  PredictOptions options;
+  options.engine_kind = parse_engine_kind(args.engine);
+  const PredictionResult result = predict(proto, options);
   const std::string text = args.json ? prediction_json_text(result) : prediction_text(result);
   if (args.output == "-") {
     std::cout << text << std::flush;
@@ -60,11 +63,16 @@ void register_predict(CLI::App& app) {
   cmd->add_flag("--json", args->json, "write JSON (DESIGN.md section 8) instead of the text report");
   cmd->add_option("-o,--output", args->output, "write to FILE instead of standard output (- : stdout)")
       ->type_name("FILE|-");
+  cmd->add_option("--engine", args->engine,
+                  "engine for the quantum probabilities: weyl (exact, default), fock, or auto "
+                  "(weyl where it can, fock where it cannot)")
+      ->check(CLI::IsMember({"weyl", "fock", "auto"}));
   cmd->footer(
       "Examples:\n"
       "  macroreal predict protocols/lg3_thermal.json\n"
       "  macroreal predict protocols/lg3_prepared_cat_conclusive.json --json -o cat.json\n"
       "  cat my_protocol.json | macroreal predict -\n"
+      "  macroreal predict noisy.json --engine auto\n"
       "Exit codes: 0 success, 2 bad input (the message names the file and the JSON path).");
   cmd->callback([args] { set_action([args] { return run_predict(*args); }); });
 }

@@ -76,7 +76,7 @@ using JointTable = std::map<std::pair<std::vector<std::string>, OutcomeString>, 
 
 class JointLookup {
  public:
-  JointLookup(const JointTable& t, const Protocol& p, const WeylEngine& e, Collector& c)
+  JointLookup(const JointTable& t, const Protocol& p, const ModelEngine& e, Collector& c)
       : table_(t), proto_(p), engine_(e), collect_(c) {}
   // From the sequences when they record it (every configuration of a destructive readout
   // contributes its own full strings), else directly from the engine.
@@ -95,7 +95,7 @@ class JointLookup {
  private:
   const JointTable& table_;
   const Protocol& proto_;
-  const WeylEngine& engine_;
+  const ModelEngine& engine_;
   Collector& collect_;
 };
 
@@ -204,7 +204,13 @@ PredictionResult predict(const Protocol& proto, const PredictOptions& options) {
       classical_model_applies(*proto.state, &res.classical_unavailable);
   if (!options.classical_models) res.classical_unavailable = "classical models switched off";
 
-  const WeylEngine engine(proto.state, options.engine);
+  // Every sequence the prediction evaluates, for the engine choice.
+  std::vector<MeasurementSequence> all_sequences;
+  for (const auto& spec : proto.sequences) all_sequences.push_back(proto.sequence_of(spec.steps));
+  for (const auto& steps : proto.step_sets_needed())
+    all_sequences.push_back(proto.sequence_of(steps));
+  const ModelEngine engine(proto.state, options.engine_kind, all_sequences, options.engine,
+                           options.fock);
   Collector collect(res.engine);
 
   // 1. Every outcome string of every sequence.
@@ -334,6 +340,10 @@ PredictionResult predict(const Protocol& proto, const PredictOptions& options) {
     }
     res.tests.push_back(std::move(tp));
   }
+
+  res.engine.name = engine.name();
+  if (options.engine_kind == EngineKind::automatic) res.engine.choice_reason = engine.choice().reason;
+  res.engine.fallbacks = engine.fallbacks();
 
   // 3. Cautions (DESIGN.md section 7): what the numbers rest on and do not establish.
   auto& cau = res.cautions;

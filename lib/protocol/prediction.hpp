@@ -15,6 +15,7 @@
 #include <string>
 #include <vector>
 
+#include "fock/engine_choice.hpp"
 #include "phase_space/classical_model.hpp"
 #include "phase_space/temporal_tests.hpp"
 #include "phase_space/weyl_engine.hpp"
@@ -23,7 +24,13 @@
 namespace macroreal {
 
 struct PredictOptions {
+  // Which engine computes the quantum probabilities: the Weyl engine (default: exact, no
+  // truncation), the Fock engine, or the automatic choice of fock/engine_choice.hpp (Weyl
+  // where it can, Fock where the Weyl engine refuses). The classical models always use the
+  // Weyl-engine quadrature settings.
+  EngineKind engine_kind = EngineKind::weyl;
   WeylEngineOptions engine{};               // Gauss-Hermite settings for rotating noise
+  FockEngineOptions fock{};                 // cutoff and truncation checks of the Fock engine
   // A sequence whose outcome probabilities sum to 1 within this counts as consistent; a
   // larger deviation is reported as a status (not thrown), see PredictionResult::status.
   double sum_tolerance = 1e-9;
@@ -102,7 +109,9 @@ struct TestPrediction {
 
 // How the numbers were obtained (aggregated over every engine call).
 struct EngineSummary {
-  std::string name = "weyl";
+  std::string name = "weyl";       // the engine used: "weyl" or "fock"
+  std::string choice_reason;       // why that engine (automatic choice), else empty
+  std::vector<std::string> fallbacks;  // sequences the automatic choice sent to the Fock engine
   int max_hermite_nodes = 0;       // per rotation dimension; 0: no quadrature was needed
   int max_rotation_dimensions = 0;
   double max_error_estimate = 0.0; // largest quadrature error estimate of any probability
@@ -127,8 +136,8 @@ struct PredictionResult {
   std::string brief() const;       // one line: tests and their values
 };
 
-// Throws DomainError when the protocol has no state, UnsupportedError when the Weyl engine
-// cannot do the noise (names the Fock engine).
+// Throws DomainError when the protocol has no state, UnsupportedError when the chosen engine
+// cannot do the noise or state (the Weyl engine's message names the Fock engine).
 PredictionResult predict(const Protocol& protocol, const PredictOptions& options = {});
 
 }  // namespace macroreal

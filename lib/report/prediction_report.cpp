@@ -176,7 +176,10 @@ nlohmann::ordered_json prediction_json(const PredictionResult& r) {
                  {"rotation_dimensions", r.engine.max_rotation_dimensions},
                  {"error_estimate", r.engine.max_error_estimate},
                  {"evaluations", r.engine.evaluations},
-                 {"calls", r.engine.engine_calls}};
+                 {"calls", r.engine.engine_calls},
+                 {"choice_reason", r.engine.choice_reason.empty() ? ojson(nullptr)
+                                                                  : ojson(r.engine.choice_reason)},
+                 {"fallbacks", names(r.engine.fallbacks)}};
   ojson probs = ojson::array();
   for (const auto& s : r.sequences)
     for (const auto& o : s.outcomes)
@@ -208,14 +211,17 @@ std::string prediction_text(const PredictionResult& r) {
                                                 ? "; Wigner function non-negative"
                                                 : "; Wigner function not known to be non-negative")});
   head.row({"readout", to_string(r.readout)});
-  std::string eng = r.engine.name + ", ";
+  std::string eng = r.engine.name + (r.engine.name == "weyl" ? " (exact displacement sums), "
+                                                               : " (truncated Fock basis), ");
   eng += r.engine.max_hermite_nodes == 0
-             ? std::string("exact (no rotation quadrature needed)")
+             ? std::string("no rotation quadrature")
              : "Gauss-Hermite quadrature, " + std::to_string(r.engine.max_hermite_nodes) +
                    " nodes x " + std::to_string(r.engine.max_rotation_dimensions) +
                    " dimensions, error estimate <= " + sci(r.engine.max_error_estimate);
   eng += ", " + std::to_string(r.engine.engine_calls) + " engine calls";
   head.row({"engine", eng});
+  if (!r.engine.choice_reason.empty()) head.row({"", r.engine.choice_reason});
+  for (const auto& f : r.engine.fallbacks) head.row({"", "fallback: " + f});
   head.row({"checks", r.status == "ok" ? "outcome probabilities of every sequence sum to 1 "
                                          "(max deviation " + sci(r.max_sum_deviation) + ")"
                                        : r.status});

@@ -183,6 +183,11 @@ TEST_CASE("predict CLI: bad input exits 2 with the file and path on stderr, noth
     CHECK(r.out.empty());
     CHECK(r.err.find("Fock engine") != std::string::npos);
   }
+  SECTION("unknown engine") {
+    const Run r = run("predict --engine magic '" + shipped("lg3_thermal.json") + "'");
+    CHECK(r.code == 2);
+    CHECK(r.out.empty());
+  }
   SECTION("help names the example") {
     const Run r = run("predict --help");
     CHECK(r.code == 0);

@@ -244,3 +244,22 @@ TEST_CASE("predict: a protocol without a state is refused", "[protocol]") {
   d.erase("state");
   CHECK_THROWS_AS(predict(parse_protocol(d, "x.json")), DomainError);
 }
+
+TEST_CASE("predict: Weyl and Fock engines agree under dephasing", "[protocol]") {
+  // Two independent engines (displacement sums with angle quadrature vs. a truncated density
+  // matrix with the Lindblad dephasing term, DESIGN.md section 2) must give the same K.
+  json doc = load("protocols/lg3_thermal.json");
+  doc["noise"]["dephasing_rate_per_s"] = 50.0;
+  const Protocol p = parse_protocol(doc, "test.json");
+  PredictOptions weyl, fock;
+  fock.engine_kind = EngineKind::fock;
+  const auto rw = predict(p, weyl), rf = predict(p, fock);
+  CHECK(rw.engine.name == "weyl");
+  CHECK(rf.engine.name == "fock");
+  CHECK(rw.engine.max_hermite_nodes > 0);
+  CHECK_CLOSE(first_lg(rf).K, first_lg(rw).K, 1e-8, 0);
+  CHECK_CLOSE(first_nsit(rf).S, first_nsit(rw).S, 1e-8, 0);
+  // The NSIT closed form is refused for rotating noise and says so.
+  CHECK_FALSE(first_nsit(rw).decomposition.has_value());
+  CHECK_FALSE(first_nsit(rw).decomposition_unavailable.empty());
+}
