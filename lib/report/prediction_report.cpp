@@ -205,12 +205,12 @@ std::string prediction_json_text(const PredictionResult& r) {
 
 std::string prediction_text(const PredictionResult& r) {
   std::string out = "macroreal predict: " + (r.title.empty() ? r.file : r.title) + "\n";
-  Table head({false, false});
-  head.row({"protocol", r.file});
-  head.row({"state", r.state_description + (r.wigner_nonnegative
+  std::vector<std::pair<std::string, std::string>> head;
+  head.push_back({"protocol", r.file});
+  head.push_back({"state", r.state_description + (r.wigner_nonnegative
                                                 ? "; Wigner function non-negative"
                                                 : "; Wigner function not known to be non-negative")});
-  head.row({"readout", to_string(r.readout)});
+  head.push_back({"readout", to_string(r.readout)});
   std::string eng = r.engine.name + (r.engine.name == "weyl" ? " (exact displacement sums), "
                                                                : " (truncated Fock basis), ");
   eng += r.engine.max_hermite_nodes == 0
@@ -219,13 +219,16 @@ std::string prediction_text(const PredictionResult& r) {
                    " nodes x " + std::to_string(r.engine.max_rotation_dimensions) +
                    " dimensions, error estimate <= " + sci(r.engine.max_error_estimate);
   eng += ", " + std::to_string(r.engine.engine_calls) + " engine calls";
-  head.row({"engine", eng});
-  if (!r.engine.choice_reason.empty()) head.row({"", r.engine.choice_reason});
-  for (const auto& f : r.engine.fallbacks) head.row({"", "fallback: " + f});
-  head.row({"checks", r.status == "ok" ? "outcome probabilities of every sequence sum to 1 "
+  head.push_back({"engine", eng});
+  if (!r.engine.choice_reason.empty()) head.push_back({"", r.engine.choice_reason});
+  for (const auto& f : r.engine.fallbacks) head.push_back({"", "fallback: " + f});
+  head.push_back({"checks", r.status == "ok" ? "outcome probabilities of every sequence sum to 1 "
                                          "(max deviation " + sci(r.max_sum_deviation) + ")"
                                        : r.status});
-  out += head.str();
+  for (const auto& [label, value] : head) {
+    const std::string pad(std::max<std::size_t>(10, label.size() + 2) - label.size(), ' ');
+    out += wrap(value, "  " + label + pad, "  " + std::string(label.size() + pad.size(), ' '));
+  }
 
   out += "\nOutcome probabilities (ideal +/-1 outcomes, before detection errors)\n";
   Table probs({false, false, false, false, false, true});
