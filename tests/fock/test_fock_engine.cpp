@@ -4,6 +4,7 @@
 #include <cstdio>
 #include <fstream>
 
+#include <boost/math/special_functions/bessel.hpp>
 #include <catch2/catch.hpp>
 
 #include "core/error.hpp"
@@ -184,4 +185,48 @@ TEST_CASE("density matrix files: read, checked, usable by both engines", "[fock]
   }
   std::remove(json_path.c_str());
   std::remove(csv_path.c_str());
+}
+
+TEST_CASE("Fock engine: dephasing of a cat's interference term, Bessel-series law", "[fock]") {
+  // Derived here, no source for the combination (the ingredients are standard): dephasing
+  // kappa D[a^dag a] over t is a random rotation of angle variance kappa t (both multiply
+  // rho_mn by exp(-kappa t (m-n)^2/2)), so chi_t(b) = E_theta chi_0(b e^{i theta}) and every
+  // angular harmonic k of chi_0 is multiplied by exp(-kappa t k^2 / 2). For the cat
+  // N(|a> + e^{i phi}|-a>) (Cahill & Glauber 1969 for the coherent matrix elements):
+  //   <+-a|D(g)|+-a> = exp(-|g|^2/2 +- 2i Im(g a*)),
+  //   <a|D(g)|-a>    = exp(-|g|^2/2 - 2|a|^2 + 2 Re(g a*)),   <-a|D(g)|a>: a -> -a,
+  // and with z = 2|a||b|, psi = arg b - arg a, the Jacobi-Anger expansions
+  //   e^{i z sin x} = sum_k J_k(z) e^{i k x}   (Abramowitz & Stegun 9.1.41),
+  //   e^{z cos x}   = sum_k I_k(z) e^{i k x}   (A&S 9.6.33):
+  //   chi_t(b) = N^2 e^{-|b|^2/2} sum_k e^{-kappa t k^2/2} e^{i k psi}
+  //              [ (1 + (-1)^k) J_k(z) + e^{-2|a|^2} (e^{i phi} + e^{-i phi} (-1)^k) I_k(z) ],
+  //   N^2 = 1 / (2 + 2 cos(phi) e^{-2|a|^2}).
+  // The interference (I_k) part carries weight at |k| up to about z = 2|a||b|, so it is
+  // destroyed faster than the J_k part, the more so the larger the cat.
+  const cplx alpha = std::polar(1.3, 0.4);
+  const double phi = 0.9, kappa = 2500.0;
+  const auto cat = make_cat(alpha, phi);
+  for (const cplx beta : {cplx(0.4, 2.1), cplx(-1.5, 0.3)}) {
+    for (double t : {0.0, 150e-6, 600e-6}) {
+      const double z = 2.0 * std::abs(alpha) * std::abs(beta);
+      const double psi = std::arg(beta) - std::arg(alpha);
+      const double a2 = std::norm(alpha);
+      cplx sum = 0.0;
+      for (int k = -60; k <= 60; ++k) {
+        const double sign = (k % 2 == 0) ? 1.0 : -1.0;
+        const double jk = (k >= 0 ? 1.0 : sign) * boost::math::cyl_bessel_j(std::abs(k), z);
+        const double ik = boost::math::cyl_bessel_i(std::abs(k), z);
+        const cplx term = (1.0 + sign) * jk +
+                          std::exp(-2.0 * a2) * (std::polar(1.0, phi) + std::polar(1.0, -phi) * sign) * ik;
+        sum += std::exp(-kappa * t * k * k / 2.0) * std::polar(1.0, k * psi) * term;
+      }
+      const cplx chi = sum * std::exp(-std::norm(beta) / 2) / (2.0 + 2.0 * std::cos(phi) * std::exp(-2.0 * a2));
+      const double meas_phase = 0.35;
+      const double want = 0.5 * (1.0 + (std::polar(1.0, meas_phase) * chi).real());
+      auto seq = one_step(beta, meas_phase, t);
+      seq.noise.dephasing_rate_per_s = kappa;
+      INFO("beta = " << beta << ", t = " << t);
+      CHECK_CLOSE(FockEngine(cat).probability(seq, {+1}).value, want, 1e-11, 0.0);
+    }
+  }
 }
