@@ -204,7 +204,7 @@ std::string prediction_json_text(const PredictionResult& r) {
 }
 
 std::string prediction_text(const PredictionResult& r) {
-  std::string out = "macroreal predict: " + (r.title.empty() ? r.file : r.title) + "\n";
+  std::string out = wrap(r.title.empty() ? r.file : r.title, "macroreal predict: ", "  ");
   std::vector<std::pair<std::string, std::string>> head;
   head.push_back({"protocol", r.file});
   head.push_back({"state", r.state_description + (r.wigner_nonnegative
