@@ -13,6 +13,8 @@
 
 #include <Eigen/Dense>
 #include <Eigen/Eigenvalues>
+
+#include "phase_space/channel.hpp"
 #include <unsupported/Eigen/MatrixFunctions>
 
 namespace macroreal::testing {
@@ -88,6 +90,43 @@ inline Mat thermal_matrix(int dim, double nbar) {
 // Tr[rho D(beta)].
 inline cd chi_of(const Mat& rho, cd beta) {
   return (rho * displacement_matrix(static_cast<int>(rho.rows()), beta)).trace();
+}
+
+// The Lindblad equation of DESIGN.md §2 (D[L] rho = L rho L^dag - 1/2 {L^dag L, rho}) with all generators added: damping gamma(n_th+1) D[a]
+// + gamma n_th D[a^dag], heating and force noise (ndot + f)(D[a] + D[a^dag]), dephasing
+// kappa D[a^dag a]; integrated over t with classical fourth-order Runge-Kutta (Press et al.,
+// Numerical Recipes, 3rd ed. (2007), eq. 17.1.3). Quasi-static frequency noise is not included.
+inline Mat lindblad_evolve(const macroreal::NoiseModel& nm, Mat rho, double t, int steps) {
+  if (t <= 0.0) return rho;
+  const int dim = static_cast<int>(rho.rows());
+  const double g = nm.damping_rate_per_s, nth = nm.bath_nbar;
+  const double h = nm.heating_quanta_per_s + nm.force_noise_quanta_per_s;
+  const double k = nm.dephasing_rate_per_s;
+  const double down = g * (nth + 1) + h, up = g * nth + h;  // rates of D[a] and D[a^dag]
+  // Element-wise in the Fock basis: (D[a] rho)_mn = sqrt((m+1)(n+1)) rho_{m+1,n+1}
+  // - (m+n)/2 rho_mn; (D[a^dag] rho)_mn = sqrt(mn) rho_{m-1,n-1} - (m+n+2)/2 rho_mn;
+  // (D[a^dag a] rho)_mn = -(m-n)^2/2 rho_mn.
+  auto rhs = [&](const Mat& r) -> Mat {
+    Mat o(dim, dim);
+    for (int n = 0; n < dim; ++n)
+      for (int m = 0; m < dim; ++m) {
+        cd v = -(down * 0.5 * (m + n) + up * 0.5 * (m + n + 2) + k * 0.5 * (m - n) * (m - n)) *
+               r(m, n);
+        if (m + 1 < dim && n + 1 < dim) v += down * std::sqrt((m + 1.0) * (n + 1.0)) * r(m + 1, n + 1);
+        if (m > 0 && n > 0) v += up * std::sqrt(1.0 * m * n) * r(m - 1, n - 1);
+        o(m, n) = v;
+      }
+    return o;
+  };
+  const double dt = t / steps;
+  for (int s = 0; s < steps; ++s) {
+    const Mat k1 = rhs(rho);
+    const Mat k2 = rhs(rho + 0.5 * dt * k1);
+    const Mat k3 = rhs(rho + 0.5 * dt * k2);
+    const Mat k4 = rhs(rho + dt * k3);
+    rho += dt / 6.0 * (k1 + 2.0 * k2 + 2.0 * k3 + k4);
+  }
+  return rho;
 }
 
 }  // namespace macroreal::testing

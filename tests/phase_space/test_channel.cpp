@@ -11,38 +11,6 @@
 using namespace macroreal;
 using namespace macroreal::testing;
 
-namespace {
-
-// D[L] rho = L rho L^dag - 1/2 {L^dag L, rho} (DESIGN.md §2).
-Mat dissipator(const Mat& l, const Mat& rho) {
-  const Mat ldl = l.adjoint() * l;
-  return l * rho * l.adjoint() - 0.5 * (ldl * rho + rho * ldl);
-}
-
-// Damping + bath + heating + force noise, all generators added (DESIGN.md §2; force noise is a
-// random displacement, generator f (D[a] + D[a^dag]) like heating), integrated with classical
-// fourth-order Runge-Kutta (Press et al., Numerical Recipes, 3rd ed. (2007), eq. 17.1.3).
-Mat evolve(const NoiseModel& nm, Mat rho, double t, int steps) {
-  const int dim = static_cast<int>(rho.rows());
-  const Mat a = annihilation(dim), ad = a.adjoint();
-  const double g = nm.damping_rate_per_s, nth = nm.bath_nbar;
-  const double h = nm.heating_quanta_per_s + nm.force_noise_quanta_per_s;
-  auto rhs = [&](const Mat& r) -> Mat {
-    return g * (nth + 1) * dissipator(a, r) + g * nth * dissipator(ad, r) +
-           h * (dissipator(a, r) + dissipator(ad, r));
-  };
-  const double dt = t / steps;
-  for (int s = 0; s < steps; ++s) {
-    const Mat k1 = rhs(rho);
-    const Mat k2 = rhs(rho + 0.5 * dt * k1);
-    const Mat k3 = rhs(rho + 0.5 * dt * k2);
-    const Mat k4 = rhs(rho + dt * k3);
-    rho += dt / 6.0 * (k1 + 2.0 * k2 + 2.0 * k3 + k4);
-  }
-  return rho;
-}
-
-}  // namespace
 
 TEST_CASE("GaussianChannel::over matches the Lindblad equation integrated directly",
           "[phase_space]") {
@@ -56,7 +24,7 @@ TEST_CASE("GaussianChannel::over matches the Lindblad equation integrated direct
   nm.heating_quanta_per_s = 0.15;
   nm.force_noise_quanta_per_s = 0.05;
   const double t = 0.7;
-  const Mat rho = evolve(nm, rho0, t, 700);
+  const Mat rho = lindblad_evolve(nm, rho0, t, 700);
   const auto ch = GaussianChannel::over(nm, t);
   const auto coh = make_coherent(alpha);
   for (cplx b : {cplx(0.3, 0.1), cplx(-0.8, 0.5), cplx(1.1, -1.2)}) {
