@@ -107,3 +107,21 @@ TEST_CASE("Binomial and multinomial samplers: reproducible, edge cases, errors",
   CHECK(derive_seed(1, 0) != derive_seed(1, 1));
   CHECK(derive_seed(1, 0) != derive_seed(2, 0));
 }
+
+TEST_CASE("Multinomial sampler: cell means match n w / sum w", "[stats]") {
+  // Each cell of Multinomial(n, w) is Binomial(n, w_j / sum w) (textbook, common practice, no
+  // source): mean n w_j / W, SD sqrt(n p (1 - p)); 20000 draws, tolerance 5 SE of the mean.
+  RandomEngine g(314);
+  const std::vector<double> w{0.2, 1.3, 0.5, 2.0};
+  const double W = 4.0, n = 500;
+  const long M = 20000;
+  std::vector<double> out(4), mean(4, 0.0);
+  for (long i = 0; i < M; ++i) {
+    multinomial(g, 500, w, out);
+    for (int j = 0; j < 4; ++j) mean[static_cast<std::size_t>(j)] += out[static_cast<std::size_t>(j)] / M;
+  }
+  for (int j = 0; j < 4; ++j) {
+    const double p = w[static_cast<std::size_t>(j)] / W;
+    CHECK_CLOSE(mean[static_cast<std::size_t>(j)], n * p, 5.0 * std::sqrt(n * p * (1 - p) / M), 0.0);
+  }
+}

@@ -45,7 +45,10 @@ struct Scenario {
 
 double corr(const double p[4]) { return p[0] - p[1] - p[2] + p[3]; }
 double true_k(const Scenario& s) { return corr(s.ab) + corr(s.bc) - corr(s.ac); }
-double true_s(const Scenario& s) { return s.b_alone - s.ab[0] - s.ab[2]; }
+double true_s(const Scenario& s) {
+  const double v = s.b_alone - s.ab[0] - s.ab[2];
+  return std::abs(v) < 1e-12 ? 0.0 : v;  // exact zeros print as 0
+}
 
 // Cell probabilities in the layout of nsit_lg_campaign(): B, AB+, AB-, BC+, BC-, AC+, AC-.
 CellCounts cell_probabilities(const Scenario& s) {
