@@ -60,7 +60,7 @@ void register_predict(CLI::App& app) {
       "sequence, and for each test K (or S) next to the classical reference models");
   cmd->add_option("protocol", args->protocol, "protocol file (macroreal-protocol/1); - reads stdin")
       ->required();
-  cmd->add_flag("--json", args->json, "write JSON (DESIGN.md section 8) instead of the text report");
+  cmd->add_flag("--json", args->json, "write one JSON object (probabilities, tests, engine, cautions) instead of the text report");
   cmd->add_option("-o,--output", args->output, "write to FILE instead of standard output (- : stdout)")
       ->type_name("FILE|-");
   cmd->add_option("--engine", args->engine,

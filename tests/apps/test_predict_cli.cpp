@@ -31,10 +31,18 @@ std::string slurp(const fs::path& p) {
 }
 
 fs::path temp_dir() {
-  const fs::path d = fs::temp_directory_path() /
-                     ("macroreal_predict_cli_" + std::to_string(::getpid()));
-  fs::create_directories(d);
-  return d;
+  // One directory per test process, removed when the process ends.
+  struct Owned {
+    fs::path path = fs::temp_directory_path() /
+                    ("macroreal_predict_cli_" + std::to_string(::getpid()));
+    ~Owned() {
+      std::error_code ec;
+      fs::remove_all(path, ec);
+    }
+  };
+  static Owned dir;
+  fs::create_directories(dir.path);
+  return dir.path;
 }
 
 // `args` is appended to the command line as written (the caller quotes).
