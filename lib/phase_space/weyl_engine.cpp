@@ -10,6 +10,12 @@
 //   eps_i ~ N(0, kappa dt_i) independently per interval (kappa D[a^dag a] over dt is a random
 //   rotation of angle variance kappa dt: both damp rho_mn by exp(-kappa dt (m-n)^2 / 2)).
 // The sign of delta is irrelevant for the average (the distribution is symmetric).
+//
+// Quadrature: probabilists' Gauss-Hermite rules (weight N(0,1), hermite_rule.hpp), one standard
+// normal z_d per angle source, Theta_j = sum_d coeff[d][j] z_d. The integrand is an entire but
+// doubly-exponentially growing function of z (e.g. cos(A sin(s z))), for which Gauss-Hermite
+// converges slowly once the angle spread s reaches ~0.8 rad: reaching 1e-12 then needs more
+// than the default 96 nodes, and the engine refuses rather than return an unconverged value.
 #include "phase_space/weyl_engine.hpp"
 
 #include <cmath>

@@ -38,7 +38,7 @@ double block_distance(const Mat& x, const Mat& y, int block) {
 TEST_CASE("heisenberg maps equal the Kraus sandwiches as matrices", "[phase_space]") {
   // Reference: the Kraus operators of DESIGN.md §2 as truncated matrix exponentials; the maps
   // as defined in measurement.hpp (outcome, signed, unselective, with contrast).
-  const int dim = 80, block = 10;
+  const int dim = 56, block = 10;
   for (Split split : {Split::symmetric, Split::one_sided}) {
     ModularMeasurement m;
     m.beta = cplx(0.9, 0.6);

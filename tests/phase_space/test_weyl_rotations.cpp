@@ -114,6 +114,27 @@ TEST_CASE("Quasi-static frequency noise: quadrature matches a brute-force averag
   }
 }
 
+TEST_CASE("Quasi-static noise on a rotation-invariant state: only relative angles matter",
+          "[phase_space]") {
+  // The engine rotates beta_j by delta (t_j - t_0) for rotation-invariant states; the brute
+  // force below rotates by the absolute angles delta t_j. Equal for a Fock state, because
+  // U rho U^dag = rho (DESIGN.md §2 rotation frame).
+  MeasurementSequence seq;
+  seq.steps.push_back(step(cplx(1.1, 0.4), 0.3, Split::one_sided, 300e-6));
+  seq.steps.push_back(step(cplx(-0.5, 1.2), -0.2, Split::symmetric, 600e-6));
+  seq.noise.frequency_noise_sd_rad_per_s = 700.0;
+  const WeylEngine eng(make_fock(1));
+  for (int o1 : {1, -1}) {
+    const auto v = eng.probability(seq, {o1, 1});
+    CHECK(v.rotation_dimensions == 1);
+    const double ref = normal_average([&](double z) {
+      const double d = 700.0 * z;
+      return eng.probability(rotated(seq, {d * 300e-6, d * 600e-6}), {o1, 1}).value;
+    });
+    CHECK_CLOSE(v.value, ref, 1e-11, 0.0);
+  }
+}
+
 TEST_CASE("Dephasing on a thermal state: two-step correlator", "[phase_space]") {
   // For a rotation-invariant state only the angle between the measurements matters: one
   // Gaussian angle of variance kappa (t2 - t1).
