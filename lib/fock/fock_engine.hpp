@@ -53,7 +53,9 @@ struct FockEngineOptions {
   double truncation_tolerance = 0.0; // > 0: required |change|, else UnsupportedError
   int initial_hermite_nodes = 12;    // quasi-static frequency noise quadrature
   int max_hermite_nodes = 96;
-  double rotation_tolerance = 1e-12;
+  // Quadrature tolerance: looser than the Weyl engine's 1e-12 because the tabulated state's
+  // round-off (~1e-13 per element, fock_tabulation.hpp) puts a noise floor under P(delta).
+  double rotation_tolerance = 1e-11;
   int interaction_slices = 16;       // slices n of a finite-duration measurement (also 2n)
   // Interaction duration (seconds, >= 0) by measurement label; missing = instantaneous.
   std::map<std::string, double> interaction_duration_s;

@@ -5,6 +5,7 @@
 // algebra in turn.
 #include <catch2/catch.hpp>
 
+#include "core/error.hpp"
 #include "fock/fock_engine.hpp"
 #include "phase_space/weyl_engine.hpp"
 #include "support/compare.hpp"
@@ -17,6 +18,7 @@ namespace {
 void sweep(int count, std::uint64_t seed, const testing::SweepLimits& lim, double tol) {
   testing::Draw d(seed);
   double worst = 0.0;
+  int refused = 0;
   for (int i = 0; i < count; ++i) {
     const auto p = testing::random_protocol(d, i, lim);
     FockEngineOptions fo;
@@ -28,8 +30,16 @@ void sweep(int count, std::uint64_t seed, const testing::SweepLimits& lim, doubl
                      << p.seq.noise.heating_quanta_per_s << ", sigma "
                      << p.seq.noise.frequency_noise_sd_rad_per_s << ", dephasing "
                      << p.seq.noise.dephasing_rate_per_s);
+    double pw = 0.0;
+    try {
+      pw = weyl.probability(p.seq, p.outcomes).value;
+    } catch (const UnsupportedError&) {
+      // The frequency-noise quadrature (the same Gauss-Hermite rule in delta in both engines)
+      // needs more nodes than allowed: no reference value for this protocol.
+      ++refused;
+      continue;
+    }
     const double pf = fock.probability(p.seq, p.outcomes).value;
-    const double pw = weyl.probability(p.seq, p.outcomes).value;
     CHECK_CLOSE(pf, pw, tol, 0.0);
     const double cf = fock.correlator(p.seq).value, cw = weyl.correlator(p.seq).value;
     CHECK_CLOSE(cf, cw, tol, 0.0);
@@ -40,7 +50,9 @@ void sweep(int count, std::uint64_t seed, const testing::SweepLimits& lim, doubl
       worst = std::max(worst, std::abs(lf - lw));
     }
   }
-  WARN("largest |Fock - Weyl| over " << count << " protocols: " << worst);
+  WARN("largest |Fock - Weyl| over " << count - refused << " protocols: " << worst << " ("
+       << refused << " refused by the Weyl engine's quadrature limit)");
+  CHECK(refused <= count / 20);
 }
 
 }  // namespace
