@@ -186,12 +186,30 @@ int parse_result(std::string_view f, const std::optional<double>& threshold) {
   return static_cast<double>(v) <= *threshold ? 0 : 1;
 }
 
-// A finite decimal number. Fast path (Clinger): at most 15 digits with an optional point,
-// value = mantissa / 10^fraction_digits, both exact doubles, so the quotient is correctly
-// rounded, the same double std::from_chars gives; anything else goes to std::from_chars.
-bool parse_time(std::string_view f, double& t) {
-  static constexpr double kPow10[16] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
-                                        1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+// A finite decimal number. Fast path: at most 15 digits with an optional point, kept as
+// mantissa and fraction digits; `approx` = mantissa * 10^-fraction (within 2^-52 relative
+// of the value) orders the rows, and exact() gives mantissa / 10^fraction, both exact
+// doubles, so the quotient is correctly rounded (Clinger, PLDI 1990), the same double
+// std::from_chars gives. The division is only done for the first and last time of each
+// sequence. Anything else goes to std::from_chars and is exact at once (fraction = -1).
+struct Decimal {
+  double approx = 0.0;
+  std::uint64_t mantissa = 0;
+  int fraction = -1;
+  bool negative = false;
+
+  double exact() const {
+    static constexpr double kPow10[16] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                          1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+    if (fraction < 0) return approx;
+    const double t = static_cast<double>(mantissa) / kPow10[fraction];
+    return negative ? -t : t;
+  }
+};
+
+bool parse_time(std::string_view f, Decimal& d) {
+  static constexpr double kInvPow10[16] = {1e0,  1e-1, 1e-2,  1e-3,  1e-4,  1e-5,  1e-6,  1e-7,
+                                           1e-8, 1e-9, 1e-10, 1e-11, 1e-12, 1e-13, 1e-14, 1e-15};
   const char* p = f.data();
   const char* e = p + f.size();
   const bool negative = p < e && *p == '-';
@@ -212,13 +230,22 @@ bool parse_time(std::string_view f, double& t) {
     }
   }
   if (fast && digits > 0 && digits <= 15) {
-    t = static_cast<double>(m) / kPow10[fraction < 0 ? 0 : fraction];
-    if (negative) t = -t;
+    if (fraction < 0) fraction = 0;
+    const double a = static_cast<double>(m) * kInvPow10[fraction];
+    d = {negative ? -a : a, m, fraction, negative};
     return true;
   }
+  double t = 0.0;
   const auto [ptr, ec] = std::from_chars(f.data(), f.data() + f.size(), t);
+  d = {t, 0, -1, false};
   return ec == std::errc() && ptr == f.data() + f.size() && std::isfinite(t);
 }
+
+// First and last time of a sequence while reading.
+struct TimeTrack {
+  bool any = false;
+  Decimal first, last;
+};
 
 void count_reason(RowSummary& rows, const char* reason, long n = 1) {
   rows.rejected += n;
@@ -236,6 +263,7 @@ class CsvParser {
     result_.counts = empty_counts(protocol);
     result_.time_ranges.assign(result_.counts.sequences.size(), ShotTimeRange{});
     shapes_ = shapes_of(result_.counts);
+    times_.assign(result_.counts.sequences.size(), TimeTrack{});
     std::vector<std::string> names;
     for (const auto& s : result_.counts.sequences) names.push_back(s.name);
     names_ = std::make_unique<NameTable>(names);
@@ -266,6 +294,8 @@ class CsvParser {
 
   OutcomeTableRead finish() {
     if (!have_header_) throw InputError(file_, "", "no header line (expected sequence,r1,...)");
+    for (std::size_t i = 0; i < times_.size(); ++i)
+      if (times_[i].any) result_.time_ranges[i] = {true, times_[i].first.exact(), times_[i].last.exact()};
     return std::move(result_);
   }
 
@@ -418,7 +448,7 @@ class CsvParser {
                       "shot " + std::to_string(shot) + " of sequence '" + std::string(seq_f) +
                           "' appears a second time");
     }
-    double t = 0.0;
+    Decimal t;
     const bool has_time = !time_f.empty();
     if (has_time) {
       if (!parse_time(time_f, t))
@@ -486,11 +516,11 @@ class CsvParser {
       shape.seen[word] |= std::uint64_t{1} << (shot & 63);
     }
     if (has_time) {
-      auto& tr = result_.time_ranges[static_cast<std::size_t>(s)];
+      auto& tr = times_[static_cast<std::size_t>(s)];
       if (!tr.any) tr = {true, t, t};
       else {
-        if (t < tr.first) tr.first = t;
-        if (t > tr.last) tr.last = t;
+        if (t.approx < tr.first.approx) tr.first = t;
+        if (t.approx > tr.last.approx) tr.last = t;
       }
     }
   }
@@ -501,6 +531,7 @@ class CsvParser {
   bool destructive_ = true;
   OutcomeTableRead result_;
   std::vector<SequenceShape> shapes_;
+  std::vector<TimeTrack> times_;
   std::unique_ptr<NameTable> names_;
   bool have_header_ = false;
   long line_no_ = 0;

@@ -58,6 +58,9 @@ struct OutcomeTableOptions {
 };
 
 // First and last time_s seen per sequence (drift checks); `any` false if none was given.
+// The values are the correctly rounded doubles of the decimal text; which row is first or
+// last is decided on an approximation within 2^-52 relative, so two times closer than
+// that may be taken in either order.
 struct ShotTimeRange {
   bool any = false;
   double first = 0.0;  // smallest time_s
