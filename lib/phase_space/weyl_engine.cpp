@@ -209,6 +209,11 @@ WeylEngine::WeylEngine(StatePtr state, WeylEngineOptions options)
   if (options_.initial_hermite_nodes < 1)
     throw DomainError("initial_hermite_nodes = " +
                       std::to_string(options_.initial_hermite_nodes) + ", but must be >= 1");
+  // TODO(issue 4): finite-duration measurements; until then refuse rather than ignore.
+  if (options_.interaction_slices != 1)
+    throw UnsupportedError("Weyl engine: interaction_slices = " +
+                           std::to_string(options_.interaction_slices) +
+                           " (finite-duration measurements) is not implemented yet; use 1");
   if (!(options_.rotation_tolerance > 0.0))
     throw DomainError("rotation_tolerance = " +
                       detail::number_text(options_.rotation_tolerance) + ", but must be > 0");
