@@ -1,11 +1,114 @@
-// `macroreal analyse`: placeholder until its issue lands (replaced by the real subcommand).
+// `macroreal analyse RUNS --protocol P.json [--json] [--level L] [--seed S] [--bootstrap B]
+// [--on-bad-row error|skip] [--threshold T] [--margin M] [--counts] [-o FILE|-]`: estimates,
+// intervals and tests of a finished campaign (lib/stats/analysis.hpp), printed as a text
+// report or JSON (lib/report/analysis_report.hpp). RUNS is an outcome table (CSV) or a counts
+// JSON, told apart by --counts, the extension or the content; "-" reads standard input.
+// Thin: parse the options, call the library, print. The whole output is built before anything
+// is written, so an error leaves stdout empty (main() prints the message, exit code 2).
+#include <fstream>
+#include <iostream>
+#include <iterator>
+#include <memory>
+#include <optional>
+
 #include "apps/commands.hpp"
+#include "core/error.hpp"
+#include "protocol/protocol_reader.hpp"
+#include "report/analysis_report.hpp"
+#include "stats/analysis.hpp"
+#include "stats/runs_input.hpp"
 
 namespace macroreal::apps {
 
+namespace {
+
+struct AnalyseArgs {
+  std::string runs;
+  std::string protocol;
+  bool json = false;
+  double level = 0.95;
+  std::uint64_t seed = kDefaultAnalysisSeed;
+  long bootstrap = 9999;
+  std::string on_bad_row = "error";
+  std::optional<double> threshold;
+  std::optional<double> margin;
+  bool counts = false;
+  std::string output = "-";
+};
+
+int run_analyse(const AnalyseArgs& args) {
+  ProtocolReadOptions read;
+  read.generate_needed_sequences = true;  // the data may name the generated sequences
+  read.require_state = false;
+  const Protocol proto = read_protocol(args.protocol, read);
+
+  OutcomeTableOptions table;
+  table.bad_rows = parse_bad_row_policy(args.on_bad_row);
+  table.threshold = args.threshold;
+  RunsInput runs;
+  if (args.runs == "-") {
+    const std::string text{std::istreambuf_iterator<char>(std::cin), std::istreambuf_iterator<char>()};
+    runs = parse_runs_text(text, "<stdin>", proto, table, args.counts);
+  } else {
+    runs = read_runs_file(args.runs, proto, table, args.counts);
+  }
+
+  AnalysisOptions options;
+  options.level = args.level;
+  options.seed = args.seed;
+  options.replicates = args.bootstrap;
+  options.margin = args.margin;
+  options.drift = runs.drift;
+  AnalysisResult result = analyse_campaign(proto, runs.read.counts, options);
+  result.runs_file = args.runs == "-" ? "<stdin>" : args.runs;
+  const std::string text = args.json ? analysis_json_text(result) : analysis_text(result);
+  if (args.output == "-") {
+    std::cout << text << std::flush;
+  } else {
+    std::ofstream out(args.output, std::ios::binary);
+    if (!(out << text) || !out.flush()) throw InputError(args.output, "", "cannot write the output file");
+  }
+  return 0;
+}
+
+}  // namespace
+
 void register_analyse(CLI::App& app) {
-  auto* cmd = app.add_subcommand("analyse", "not available yet");
-  cmd->callback([] { set_action([] { return 2; }); });
+  auto args = std::make_shared<AnalyseArgs>();
+  auto* cmd = app.add_subcommand(
+      "analyse",
+      "Analyse recorded runs: every estimate with its confidence intervals, the LG and NSIT tests "
+      "with several methods, multiplicity adjustments, the NSIT bound on invasiveness, the "
+      "comparison with the protocol's model, and the assumptions the conclusions rest on");
+  cmd->add_option("runs", args->runs,
+                  "outcome table (CSV, one row per shot) or counts JSON (macroreal-counts/1); - reads stdin")
+      ->required();
+  cmd->add_option("--protocol", args->protocol, "protocol file (macroreal-protocol/1)")->required();
+  cmd->add_flag("--json", args->json, "write JSON (DESIGN.md section 8) instead of the text report");
+  cmd->add_option("--level", args->level, "two-sided confidence level of the intervals (default 0.95)")
+      ->check(CLI::Range(0.5, 0.999999));
+  cmd->add_option("--seed", args->seed, "seed of every resampling step (default 20261202)");
+  cmd->add_option("--bootstrap", args->bootstrap,
+                  "bootstrap replicates B for intervals and resampling tests (default 9999)")
+      ->check(CLI::Range(100L, 10000000L));
+  cmd->add_option("--on-bad-row", args->on_bad_row,
+                  "error: stop at the first bad row (default); skip: leave it out and count the reason")
+      ->check(CLI::IsMember({"error", "skip"}));
+  cmd->add_option("--threshold", args->threshold,
+                  "photon-count threshold (count <= T reads dark); overrides the protocol's");
+  cmd->add_option("--margin", args->margin,
+                  "NSIT equivalence margin for TOST, for tests without their own \"margin\"");
+  cmd->add_flag("--counts", args->counts, "RUNS is a counts JSON whatever its name or content");
+  cmd->add_option("-o,--output", args->output, "write to FILE instead of standard output (- : stdout)")
+      ->type_name("FILE|-");
+  cmd->footer(
+      "Examples:\n"
+      "  macroreal analyse example_runs/lg3_thermal_runs.csv --protocol protocols/lg3_thermal.json\n"
+      "  macroreal analyse counts.json --protocol p.json --json --seed 7 --bootstrap 20000\n"
+      "  zcat runs.csv.gz | macroreal analyse - --protocol p.json --on-bad-row skip\n"
+      "Exit codes: 0 success, 2 bad input (the message names the file, the line and column or the "
+      "JSON path, and the field).");
+  cmd->callback([args] { set_action([args] { return run_analyse(*args); }); });
 }
 
 }  // namespace macroreal::apps

@@ -1,0 +1,426 @@
+#include "report/analysis_report.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <sstream>
+
+namespace macroreal {
+
+namespace {
+
+using ojson = nlohmann::ordered_json;
+
+ojson number(double x) { return std::isfinite(x) ? ojson(x) : ojson(nullptr); }
+
+std::string num(double x, int digits = 4) {
+  if (!std::isfinite(x)) return "n/a";
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", digits, x);
+  std::string s = buf;
+  if (s.find_first_not_of("-0.") == std::string::npos && s[0] == '-') s.erase(0, 1);
+  return s;
+}
+
+std::string pval(double p) {
+  if (!std::isfinite(p)) return "n/a";
+  char buf[64];
+  if (p < 1e-4) std::snprintf(buf, sizeof buf, "%.2e", p);
+  else std::snprintf(buf, sizeof buf, "%.4f", p);
+  return buf;
+}
+
+std::string interval(const IntervalEstimate& e) {
+  if (!e.valid) return "n/a";
+  return "[" + num(e.lo) + ", " + num(e.hi) + "]";
+}
+
+std::string join(const std::vector<std::string>& v, const std::string& sep = "") {
+  std::string s;
+  for (std::size_t i = 0; i < v.size(); ++i) s += (i ? sep : "") + v[i];
+  return s;
+}
+
+// A fixed-width table: column widths from the content, two spaces between columns.
+class Table {
+ public:
+  explicit Table(std::vector<bool> right_aligned) : right_(std::move(right_aligned)) {}
+  void row(std::vector<std::string> cells) { rows_.push_back(std::move(cells)); }
+  std::string str(const std::string& indent = "  ") const {
+    std::vector<std::size_t> w(right_.size(), 0);
+    for (const auto& r : rows_)
+      for (std::size_t c = 0; c < r.size() && c < w.size(); ++c) w[c] = std::max(w[c], r[c].size());
+    std::string out;
+    for (const auto& r : rows_) {
+      std::string line = indent;
+      for (std::size_t c = 0; c < w.size(); ++c) {
+        const std::string cell = c < r.size() ? r[c] : "";
+        const std::string pad(w[c] - cell.size(), ' ');
+        line += right_[c] ? pad + cell : cell + pad;
+        if (c + 1 < w.size()) line += "  ";
+      }
+      while (!line.empty() && line.back() == ' ') line.pop_back();
+      out += line + "\n";
+    }
+    return out;
+  }
+
+ private:
+  std::vector<bool> right_;
+  std::vector<std::vector<std::string>> rows_;
+};
+
+// Word wrap at `width` columns; the first line starts with `first`, the others with `rest`.
+std::string wrap(const std::string& text, const std::string& first, const std::string& rest,
+                 std::size_t width = 96) {
+  std::istringstream in(text);
+  std::string word, line = first, out;
+  bool empty = true;
+  while (in >> word) {
+    if (!empty && line.size() + 1 + word.size() > width) {
+      out += line + "\n";
+      line = rest;
+      empty = true;
+    }
+    line += (empty ? "" : " ") + word;
+    empty = false;
+  }
+  return out + line + "\n";
+}
+
+ojson interval_json(const IntervalEstimate& e) {
+  ojson j;
+  j["method"] = e.method;
+  j["ci"] = e.valid ? ojson::array({number(e.lo), number(e.hi)}) : ojson(nullptr);
+  if (!e.note.empty()) j["note"] = e.note;
+  return j;
+}
+
+ojson estimate_json(const QuantityEstimate& q) {
+  ojson j;
+  j["estimate"] = number(q.estimate);
+  j["ci"] = q.ci.valid ? ojson::array({number(q.ci.lo), number(q.ci.hi)}) : ojson(nullptr);
+  j["level"] = q.level;
+  j["method"] = q.ci.method;
+  j["std_error"] = number(q.std_error);
+  j["status"] = q.status;
+  if (!q.note.empty()) j["note"] = q.note;
+  ojson all = ojson::array();
+  for (const auto& iv : q.intervals) all.push_back(interval_json(iv));
+  j["intervals"] = all;
+  return j;
+}
+
+const QuantityEstimate* find_estimate(const AnalysisResult& r, const std::string& name) {
+  for (const auto& q : r.estimates)
+    if (q.name == name) return &q;
+  return nullptr;
+}
+
+ojson test_json(const TestResult& t) {
+  ojson j;
+  j["method"] = t.method;
+  j["statistic"] = number(t.statistic);
+  j["p_value"] = number(t.p_value);
+  j["sigma"] = number(t.sigma);
+  j["sigma_capped"] = t.sigma_capped;
+  if (!t.note.empty()) j["note"] = t.note;
+  return j;
+}
+
+void primary_fields(ojson& j, const std::vector<TestResult>& tests, const std::string& primary) {
+  const TestResult* p = nullptr;
+  for (const auto& t : tests)
+    if (t.method == primary) p = &t;
+  j["p_value"] = p ? number(p->p_value) : ojson(nullptr);
+  j["sigma"] = p ? number(p->sigma) : ojson(nullptr);
+  j["method"] = primary;
+  ojson all = ojson::array();
+  for (const auto& t : tests) all.push_back(test_json(t));
+  j["methods"] = all;
+}
+
+ojson opt(const std::optional<double>& x) { return x ? number(*x) : ojson(nullptr); }
+
+ojson names(const std::vector<std::string>& v) {
+  ojson a = ojson::array();
+  for (const auto& s : v) a.push_back(s);
+  return a;
+}
+
+}  // namespace
+
+nlohmann::ordered_json analysis_json(const AnalysisResult& r) {
+  ojson j;
+  j["format"] = "macroreal-analysis/1";
+  j["protocol"] = r.protocol_file;
+  j["title"] = r.title;
+  j["runs"] = r.runs_file;
+  j["readout"] = to_string(r.readout);
+  j["level"] = r.level;
+  j["seed"] = r.seed;
+  j["bootstrap_replicates"] = r.replicates;
+  j["default_interval"] = r.default_interval;
+  ojson reasons = ojson::object();
+  for (const auto& [k, v] : r.rows.reasons) reasons[k] = v;
+  j["rows"] = {{"read", r.rows.read}, {"used", r.rows.used}, {"rejected", r.rows.rejected},
+               {"reasons", reasons}};
+  ojson seqs = ojson::array();
+  for (const auto& s : r.sequences)
+    seqs.push_back({{"name", s.name}, {"shots", s.shots}, {"listed", s.listed}});
+  j["sequences"] = seqs;
+  j["unobserved_sequences"] = names(r.unobserved);
+  ojson est = ojson::object();
+  for (const auto& q : r.estimates) est[q.name] = estimate_json(q);
+  j["estimates"] = est;
+
+  ojson tests = ojson::array();
+  for (const auto& a : r.leggett_garg) {
+    ojson t;
+    t["kind"] = "leggett-garg";
+    t["label"] = a.label;
+    t["order"] = names(a.order);
+    const QuantityEstimate* q = find_estimate(r, a.quantity);
+    t["K"] = q ? estimate_json(*q) : ojson(nullptr);
+    t["bound"] = a.bound;
+    t["K_linear"] = number(a.K_linear);
+    primary_fields(t, a.tests, a.primary_method);
+    if (a.invasiveness) {
+      const auto& b = *a.invasiveness;
+      t["invasiveness"] = {{"pairs", names(b.pairs)}, {"bound", b.bound}, {"bound_upper", b.bound_upper},
+                           {"k_lower", b.k_lower}, {"level", b.level}, {"exceeds", b.exceeds},
+                           {"assumption", b.assumption}};
+    } else {
+      t["invasiveness"] = nullptr;
+      t["invasiveness_unavailable"] = a.invasiveness_unavailable;
+    }
+    if (a.model) {
+      const auto& m = *a.model;
+      ojson mj;
+      mj["K_model"] = m.K_model;
+      mj["K_classical"] = opt(m.K_classical);
+      mj["K_classical_kicked"] = opt(m.K_classical_kicked);
+      mj["versus_kicked"] = m.versus_kicked ? test_json(*m.versus_kicked) : ojson(nullptr);
+      mj["exceeds_kicked_classical"] =
+          m.versus_kicked && std::isfinite(m.versus_kicked->p_value)
+              ? ojson(m.versus_kicked->p_value < 1.0 - r.level) : ojson(nullptr);
+      if (!m.classical_unavailable.empty()) mj["classical_unavailable"] = m.classical_unavailable;
+      mj["verdict"] = m.verdict;
+      t["model"] = mj;
+    } else {
+      t["model"] = nullptr;
+    }
+    t["verdict"] = a.verdict;
+    tests.push_back(t);
+  }
+  for (const auto& a : r.nsit) {
+    ojson t;
+    t["kind"] = "nsit";
+    t["label"] = a.label;
+    t["from"] = a.from;
+    t["to"] = a.to;
+    const QuantityEstimate* q = find_estimate(r, a.quantity);
+    t["S"] = q ? estimate_json(*q) : ojson(nullptr);
+    t["margin"] = opt(a.margin);
+    if (a.margin) t["margin_source"] = a.margin_source;
+    primary_fields(t, a.tests, a.primary_method);
+    t["S_model"] = opt(a.S_model);
+    t["verdict"] = a.verdict;
+    tests.push_back(t);
+  }
+  j["tests"] = tests;
+
+  ojson mult;
+  mult["p_values_entering"] = r.multiplicity.which;
+  ojson fam = ojson::array();
+  for (const auto& e : r.multiplicity.entries)
+    fam.push_back({{"label", e.label}, {"method", e.method}, {"p_value", number(e.p_value)},
+                   {"holm", number(e.holm)}, {"benjamini_hochberg", number(e.benjamini_hochberg)}});
+  mult["tests"] = fam;
+  if (r.multiplicity.max_statistic) {
+    const auto& m = *r.multiplicity.max_statistic;
+    ojson a = ojson::array();
+    for (std::size_t k = 0; k < m.adjusted_p.size(); ++k)
+      a.push_back({{"label", k < r.multiplicity.max_statistic_labels.size() ? r.multiplicity.max_statistic_labels[k] : ""},
+                   {"statistic", number(m.statistic[k])}, {"adjusted_p", number(m.adjusted_p[k])}});
+    mult["max_statistic"] = {{"settings", a}, {"p_largest", number(m.p_largest)},
+                             {"sigma_largest", number(m.sigma_largest)}, {"replicates", m.replicates}};
+  } else {
+    mult["max_statistic"] = nullptr;
+  }
+  mult["max_statistic_note"] = r.multiplicity.max_statistic_note;
+  j["multiplicity"] = mult;
+
+  ojson drift;
+  drift["checked"] = r.drift.checked;
+  drift["method"] = r.drift.method;
+  if (r.drift.checked) {
+    drift["chi_square"] = number(r.drift.chi_square);
+    drift["df"] = r.drift.df;
+    drift["p_value"] = number(r.drift.p_value);
+    ojson per = ojson::array();
+    for (const auto& s : r.drift.sequences) {
+      ojson x = {{"sequence", s.name}, {"split_time_s", s.split_time_s},
+                 {"shots", ojson::array({s.first_half, s.second_half})},
+                 {"chi_square", number(s.chi_square)}, {"df", s.df}, {"p_value", number(s.p_value)},
+                 {"small_expected", s.small_expected}};
+      if (!s.note.empty()) x["note"] = s.note;
+      per.push_back(x);
+    }
+    drift["sequences"] = per;
+  } else {
+    drift["not_checked"] = r.drift.not_checked;
+  }
+  j["drift"] = drift;
+  j["detection_model"] = r.detection_model;
+  j["cautions"] = names(r.cautions);
+  j["not_established"] = names(r.not_established);
+  return j;
+}
+
+std::string analysis_json_text(const AnalysisResult& r) { return analysis_json(r).dump(2) + "\n"; }
+
+std::string analysis_text(const AnalysisResult& r) {
+  std::string out;
+  const std::string lvl = num(100.0 * r.level, 1) + " %";
+  out += "macroreal analyse\n";
+  out += wrap(r.title, "  protocol  " + r.protocol_file + ": ", "            ");
+  out += "  runs      " + r.runs_file + "\n";
+  out += "  readout   " + to_string(r.readout) + "\n";
+  out += "  level     " + lvl + "   seed " + std::to_string(r.seed) + "   bootstrap B = " +
+         std::to_string(r.replicates) + "\n";
+  out += "  interval  default " + r.default_interval + "\n\n";
+
+  out += "Rows\n";
+  out += "  read " + std::to_string(r.rows.read) + ", used " + std::to_string(r.rows.used) +
+         ", rejected " + std::to_string(r.rows.rejected) + "\n";
+  for (const auto& [k, v] : r.rows.reasons) out += "    " + std::to_string(v) + " rejected: " + k + "\n";
+  {
+    Table t({false, true, false});
+    t.row({"sequence", "shots", ""});
+    for (const auto& s : r.sequences) t.row({s.name, num(s.shots, 0), s.listed ? "" : "(generated name)"});
+    out += t.str();
+  }
+  if (!r.unobserved.empty()) out += "  listed but without shots: " + join(r.unobserved, ", ") + "\n";
+  out += "\n";
+
+  out += "Estimates (pooled MLE, delta-method SE, " + lvl + " intervals)\n";
+  {
+    Table t({false, true, true, false, false, false, false});
+    t.row({"quantity", "estimate", "se", r.estimates.empty() ? "" : r.estimates.front().ci.method + " (default)",
+           "percentile", "basic", "studentized"});
+    for (const auto& q : r.estimates) {
+      std::vector<std::string> row = {q.name, num(q.estimate), num(q.std_error), interval(q.ci)};
+      for (const char* m : {"percentile", "basic", "studentized"})
+        for (const auto& iv : q.intervals)
+          if (iv.method == m) row.push_back(interval(iv));
+      t.row(row);
+    }
+    out += t.str();
+  }
+  {
+    Table t({false, false, false, false});
+    bool any = false;
+    for (const auto& q : r.estimates)
+      for (const auto& iv : q.intervals)
+        if (iv.method == "wilson" || iv.method == "clopper-pearson" || iv.method == "newcombe-hybrid-score") {
+          if (!any) t.row({"quantity", "interval", "method", "of"});
+          any = true;
+          t.row({q.name, interval(iv), iv.method, iv.note});
+        }
+    if (any) out += "  binomial intervals:\n" + t.str();
+  }
+  for (const auto& q : r.estimates)
+    if (q.status != "ok") out += wrap(q.name + ": " + q.status + (q.note.empty() ? "" : " (" + q.note + ")"), "  note: ", "        ");
+  out += "\n";
+
+  out += "Tests (one-sided for LG, H0: K <= bound; two-sided for NSIT, H0: S = 0)\n";
+  {
+    Table t({false, false, true, true, true, false});
+    t.row({"test", "method", "statistic", "p-value", "sigma", "note"});
+    for (const auto& a : r.leggett_garg)
+      for (const auto& tr : a.tests)
+        t.row({a.label, tr.method + (tr.method == a.primary_method ? " *" : ""), num(tr.statistic),
+               pval(tr.p_value), num(tr.sigma, 2), tr.note});
+    for (const auto& a : r.nsit)
+      for (const auto& tr : a.tests)
+        t.row({a.label, tr.method + (tr.method == a.primary_method ? " *" : ""), num(tr.statistic),
+               pval(tr.p_value), num(tr.sigma, 2), tr.note});
+    out += t.str();
+    out += "  * the p-value that enters the multiplicity adjustment; sigma = Phi^-1(1 - p)\n";
+  }
+  out += "\n";
+
+  out += "Multiplicity\n";
+  out += wrap(r.multiplicity.which, "  entering: ", "            ");
+  {
+    Table t({false, false, true, true, true});
+    t.row({"test", "method", "p-value", "Holm", "BH"});
+    for (const auto& e : r.multiplicity.entries)
+      t.row({e.label, e.method, pval(e.p_value), pval(e.holm), pval(e.benjamini_hochberg)});
+    out += t.str();
+  }
+  if (r.multiplicity.max_statistic) {
+    const auto& m = *r.multiplicity.max_statistic;
+    for (std::size_t k = 0; k < m.adjusted_p.size(); ++k)
+      out += "  max-statistic " +
+             (k < r.multiplicity.max_statistic_labels.size() ? r.multiplicity.max_statistic_labels[k] : "") +
+             ": T = " + num(m.statistic[k]) + ", adjusted p = " + pval(m.adjusted_p[k]) + "\n";
+  }
+  out += wrap(r.multiplicity.max_statistic_note, "  max-statistic: ", "    ");
+  out += "\n";
+
+  bool any_extra = false;
+  for (const auto& a : r.leggett_garg) {
+    if (!any_extra) out += "Invasiveness and model\n";
+    any_extra = true;
+    if (a.invasiveness) {
+      const auto& b = *a.invasiveness;
+      out += "  " + a.label + ": NSIT bound on K " + num(b.bound) + " (upper limit " + num(b.bound_upper) +
+             ", pairs " + join(b.pairs, ", ") + "); K lower limit " + num(b.k_lower) + " -> " +
+             (b.exceeds ? "exceeds" : "does not exceed") + "\n";
+    } else {
+      out += wrap(a.label + ": no invasiveness bound: " + a.invasiveness_unavailable, "  ", "    ");
+    }
+    if (a.model) {
+      const auto& m = *a.model;
+      out += "  " + a.label + ": model K = " + num(m.K_model) + ", classical K = " +
+             (m.K_classical ? num(*m.K_classical) : "n/a") + ", kicked classical K = " +
+             (m.K_classical_kicked ? num(*m.K_classical_kicked) : "n/a") + "\n";
+    }
+  }
+  if (any_extra) out += "\n";
+
+  out += "Verdicts\n";
+  for (const auto& a : r.leggett_garg) {
+    out += wrap(a.verdict, "  " + a.label + ": ", "    ");
+    if (a.model) out += wrap(a.model->verdict, "    ", "    ");
+  }
+  for (const auto& a : r.nsit) out += wrap(a.verdict, "  " + a.label + ": ", "    ");
+  out += "\n";
+
+  out += "Drift\n";
+  if (r.drift.checked) {
+    Table t({false, true, true, true, true, true, false});
+    t.row({"sequence", "split time_s", "shots 1st", "shots 2nd", "chi-square", "p-value", "note"});
+    for (const auto& s : r.drift.sequences)
+      t.row({s.name, num(s.split_time_s, 3), num(s.first_half, 0), num(s.second_half, 0),
+             s.df > 0 ? num(s.chi_square, 2) + " (" + std::to_string(s.df) + " df)" : "n/a",
+             s.df > 0 ? pval(s.p_value) : "n/a",
+             s.note.empty() ? (s.small_expected ? "expected count < 5" : "") : s.note});
+    out += t.str();
+    out += "  all: chi-square " + num(r.drift.chi_square, 2) + " on " + std::to_string(r.drift.df) +
+           " df, p = " + pval(r.drift.p_value) + "\n";
+  } else {
+    out += "  not checked: " + r.drift.not_checked + "\n";
+  }
+  out += "\n";
+
+  out += "Cautions\n";
+  for (const auto& c : r.cautions) out += wrap(c, "  - ", "    ");
+  out += "\nWhat this analysis does not establish\n";
+  for (const auto& c : r.not_established) out += wrap(c, "  - ", "    ");
+  return out;
+}
+
+}  // namespace macroreal
