@@ -15,7 +15,8 @@
 // normal z_d per angle source, Theta_j = sum_d coeff[d][j] z_d. The integrand is an entire but
 // doubly-exponentially growing function of z (e.g. cos(A sin(s z))), for which Gauss-Hermite
 // converges slowly once the angle spread s reaches ~0.8 rad: reaching 1e-12 then needs more
-// than the default 96 nodes, and the engine refuses rather than return an unconverged value.
+// than 96 nodes (hence the default limit of 384 for one or two angles), and the engine refuses
+// rather than return an unconverged value.
 #include "phase_space/weyl_engine.hpp"
 
 #include <cmath>

@@ -22,7 +22,7 @@ namespace macroreal {
 
 struct WeylEngineOptions {
   int initial_hermite_nodes = 12;          // per rotation dimension
-  int max_hermite_nodes = 96;
+  int max_hermite_nodes = 384;           // 1-2 angles only: the evaluation limit caps more
   double rotation_tolerance = 1e-12;       // absolute, on each probability
   long max_rotation_evaluations = 2000000; // product-quadrature size limit
   int interaction_slices = 1;              // finite-duration measurement slices (issue 4)
