@@ -174,4 +174,16 @@ TestResult lg_parametric_bootstrap_test(const CellCounts& counts, const LinearFu
   return finish(r);
 }
 
+std::vector<TestResult> leggett_garg_tests(const CampaignCounts& campaign,
+                                           const std::vector<std::string>& order, double estimate,
+                                           double std_error, const ParametricBootstrapOptions& options) {
+  const LinearFunctional k = lg_functional(campaign, order);
+  CellCounts counts;
+  for (const auto& s : campaign.sequences) counts.push_back(s.counts);
+  const double bound = static_cast<double>(order.size()) - 2.0;
+  return {lg_z_test(estimate, std_error, bound), lg_hoeffding_test(counts, k, bound),
+          lg_empirical_bernstein_test(counts, k, bound),
+          lg_parametric_bootstrap_test(counts, k, bound, options)};
+}
+
 }  // namespace macroreal

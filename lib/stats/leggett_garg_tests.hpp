@@ -29,6 +29,7 @@
 
 #include <cstdint>
 #include <string>
+#include <vector>
 
 #include "stats/bootstrap.hpp"
 #include "stats/linear_functional.hpp"
@@ -60,5 +61,13 @@ struct ParametricBootstrapOptions {
 };
 TestResult lg_parametric_bootstrap_test(const CellCounts& counts, const LinearFunctional& k,
                                         double bound, const ParametricBootstrapOptions& options = {});
+
+// Every LG test above for the LG order of a campaign, bound n - 2: the z test with the
+// caller's estimate and SE (e.g. the pooled MLE and its delta-method SE), then Hoeffding,
+// empirical Bernstein and the parametric bootstrap on the non-pooled K of `campaign`.
+std::vector<TestResult> leggett_garg_tests(const CampaignCounts& campaign,
+                                           const std::vector<std::string>& order, double estimate,
+                                           double std_error,
+                                           const ParametricBootstrapOptions& options = {});
 
 }  // namespace macroreal

@@ -168,4 +168,19 @@ TestResult nsit_tost(const CellCounts& counts, const LinearFunctional& s, double
   return with_sigma(r);
 }
 
+std::vector<TestResult> nsit_tests(const CampaignCounts& campaign, const std::string& from,
+                                   const std::string& to, std::optional<double> margin) {
+  const LinearFunctional s = nsit_functional(campaign, from, to);
+  CellCounts counts;
+  for (const auto& q : campaign.sequences) counts.push_back(q.counts);
+  std::vector<TestResult> out{nsit_score_test(counts, s)};
+  if (campaign.readout == Readout::nondestructive) {
+    const BinomialArms a = nsit_binomial_arms(campaign, from, to);
+    if (a.n1 > 0 && a.n2 > 0 && static_cast<double>(a.n1 + 1) * static_cast<double>(a.n2 + 1) <= 4e6)
+      out.push_back(barnard_exact_test(a.x1, a.n1, a.x2, a.n2));
+  }
+  if (margin) out.push_back(nsit_tost(counts, s, *margin));
+  return out;
+}
+
 }  // namespace macroreal

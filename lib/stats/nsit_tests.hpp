@@ -20,7 +20,9 @@
 //     the null variances come from the constrained fits at S = +-margin.
 #pragma once
 
+#include <optional>
 #include <string>
+#include <vector>
 
 #include "stats/campaign_counts.hpp"
 #include "stats/leggett_garg_tests.hpp"
@@ -45,5 +47,10 @@ BinomialArms nsit_binomial_arms(const CampaignCounts& counts, const std::string&
 
 // TOST for |S| < margin (margin > 0 and inside the functional's range).
 TestResult nsit_tost(const CellCounts& counts, const LinearFunctional& s, double margin);
+
+// The NSIT tests of a campaign: the score test; Barnard's exact test when the readout gives
+// two binomials and the enumeration is small enough; TOST when a margin is given.
+std::vector<TestResult> nsit_tests(const CampaignCounts& campaign, const std::string& from,
+                                   const std::string& to, std::optional<double> margin = {});
 
 }  // namespace macroreal

@@ -215,3 +215,32 @@ TEST_CASE("Multiplicity: Holm and Benjamini-Hochberg adjusted p-values", "[stats
   CHECK(rej_holm == 3);
   CHECK_THROWS_AS(holm_adjust({0.1, 1.2}), DomainError);
 }
+
+TEST_CASE("Campaign-level LG and NSIT test lists", "[stats]") {
+  // The lists must hold exactly the single tests, in the documented order (consistency with
+  // the single-test functions checked against SciPy above).
+  const CellCounts counts = {{17, 6, 9}, {5, 14, 10}, {19, 5, 7}, {4, 15, 9}, {9, 12, 10}, {11, 8, 11}};
+  const CampaignCounts lg = lg3_campaign(counts);
+  ParametricBootstrapOptions o;
+  o.replicates = 999;
+  const auto tests = leggett_garg_tests(lg, {"A", "B", "C"}, 1.7, 0.3, o);
+  REQUIRE(tests.size() == 4);
+  CHECK(tests[0].method == "z-asymptotic");
+  CHECK(tests[1].method == "hoeffding");
+  CHECK(tests[2].method == "empirical-bernstein");
+  CHECK(tests[3].method == "parametric-bootstrap");
+  const LinearFunctional k = lg_functional(lg, {"A", "B", "C"});
+  CHECK(tests[1].p_value == lg_hoeffding_test(counts, k, 1.0).p_value);
+  CampaignCounts nd;
+  nd.readout = Readout::nondestructive;
+  nd.sequences.push_back(make_sequence("B", {"B"}, {+1}, {12, 8}, Readout::nondestructive));
+  nd.sequences.push_back(make_sequence("AB", {"A", "B"}, {+1, +1}, {5, 3, 6, 6}, Readout::nondestructive));
+  const auto ns = nsit_tests(nd, "A", "B", 0.2);
+  REQUIRE(ns.size() == 3);
+  CHECK(ns[0].method == "score");
+  CHECK(ns[1].method == "barnard-exact");
+  CHECK(ns[1].p_value == barnard_exact_test(12, 20, 11, 20).p_value);
+  CHECK(ns[2].method == "tost");
+  const auto nsd = nsit_tests(nsit_campaign({{10, 5}, {3, 4, 5}, {2, 2, 2}}), "A", "B");
+  CHECK(nsd.size() == 1);
+}
