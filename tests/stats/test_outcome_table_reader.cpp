@@ -347,3 +347,27 @@ TEST_CASE("Outcome table: long lines and lines longer than a read block", "[stat
   const auto r2 = parse_outcome_table(good, "l.csv", p);
   CHECK(r2.counts.rows.used == 3);
 }
+
+TEST_CASE("Outcome table: time_s values equal the C library's strtod of the text", "[stats]") {
+  // Reference: std::strtod (C standard library), an implementation independent of ours.
+  const std::vector<std::string> times = {".5", "5.", "1e-3", "-2.5", "0.1234567890123456789",
+                                          "12345678901.5", "0.000001", "99999999.9999999",
+                                          "7", "3.14159265358979", "-0.0000000001"};
+  for (const auto& t : times) {
+    const std::string text = kHeader + "B,0," + t + ",dark\n";
+    const auto r = parse_outcome_table(text, "t.csv", destructive_protocol());
+    INFO("time_s = " << t);
+    const auto& tr = r.time_ranges[2];  // B
+    REQUIRE(tr.any);
+    CHECK(tr.first == std::strtod(t.c_str(), nullptr));
+    CHECK(tr.last == tr.first);
+  }
+  // Several rows: the range is the smallest and the largest value.
+  const auto r = parse_outcome_table(kHeader + "B,0,2.5,dark\nB,1,-1e2,dark\nB,2,0.75,bright\nB,3,300.125,dark\n",
+                                     "t.csv", destructive_protocol());
+  CHECK(r.time_ranges[2].first == -100.0);
+  CHECK(r.time_ranges[2].last == 300.125);
+  for (const std::string bad : {".", "-", "1.2.3", "--1", "1e", "nan", "inf", "0x10", "+1"})
+    CHECK_THROWS_WITH(parse_outcome_table(kHeader + "B,0," + bad + ",dark\n", "t.csv", destructive_protocol()),
+                      Catch::Contains("column 3 (time_s)"));
+}
