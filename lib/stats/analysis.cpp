@@ -360,14 +360,16 @@ AnalysisResult analyse_campaign(const Protocol& protocol, const CampaignCounts& 
     if (kf) scan.push_back({counts, *kf, a.bound});
 
     if (controls.empty()) {
-      a.invasiveness_unavailable = "the protocol has no NSIT control with data";
+      a.invasiveness_unavailable = "the protocol has no NSIT control with data; the bound needs an NSIT test for every pair (k, k+1) and (1, n) of the order";
     } else {
       try {
         if (!std::isfinite(a.K) || !std::isfinite(a.std_error))
           throw DomainError("K or its standard error is undefined");
         a.invasiveness = invasiveness_bound(spec.order, a.K, a.std_error, controls, options.level);
       } catch (const DomainError& e) {
-        a.invasiveness_unavailable = e.what();
+        a.invasiveness_unavailable = std::string(e.what()) +
+                                     "; the bound needs an NSIT test, with runs of the later "
+                                     "measurement alone, for every pair (k, k+1) and (1, n)";
       }
     }
 
