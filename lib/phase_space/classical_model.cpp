@@ -17,6 +17,7 @@
 #include "phase_space/classical_model.hpp"
 
 #include <cmath>
+#include <map>
 #include <sstream>
 #include <utility>
 #include <vector>
@@ -69,7 +70,7 @@ void orthonormal_hermite(int n, double x, std::vector<double>& p) {
                std::sqrt(static_cast<double>(k + 1));
 }
 
-HermiteRule hermite_rule(int n) {
+HermiteRule compute_hermite_rule(int n) {
   HermiteRule r;
   if (n == 1) {
     r.nodes = {0.0};
@@ -86,18 +87,29 @@ HermiteRule hermite_rule(int n) {
     for (int it = 0; it < 3; ++it) {  // p_n' = sqrt(n) p_{n-1}
       orthonormal_hermite(n, x, p);
       const double d = std::sqrt(double(n)) * p[n - 1];
-      if (d == 0.0) break;
-      x -= p[n] / d;
+      const double step = p[n] / d;
+      if (!std::isfinite(step)) break;  // far nodes of large rules overflow; keep the eigenvalue
+      x -= step;
     }
     orthonormal_hermite(n - 1, x, p);
     double s = 0.0;
     for (int k = 0; k < n; ++k) s += p[k] * p[k];
+    // A far node whose sum overflows has a weight below the double range: zero.
+    const double w = std::isfinite(s) && s > 0.0 ? 1.0 / s : 0.0;
     r.nodes.push_back(x);
-    r.weights.push_back(1.0 / s);
-    total += 1.0 / s;
+    r.weights.push_back(w);
+    total += w;
   }
   for (double& w : r.weights) w /= total;  // exact total mass 1 (removes rounding drift)
   return r;
+}
+
+// Per-thread cache: the rules are reused by every call with the same node count.
+const HermiteRule& hermite_rule(int n) {
+  thread_local std::map<int, HermiteRule> cache;
+  auto it = cache.find(n);
+  if (it == cache.end()) it = cache.emplace(n, compute_hermite_rule(n)).first;
+  return it->second;
 }
 
 // What each step contributes: its factor f_j(z) = a0 + ap e^{i l.z} + am e^{-i l.z}.
@@ -293,7 +305,7 @@ EngineValue classical_expectation(const State& state, ClassicalKind kind,
   const int dims = static_cast<int>(F.cols());
 
   auto integrate = [&](int nodes, long& evaluations) {
-    const HermiteRule rule = hermite_rule(nodes);
+    const HermiteRule& rule = hermite_rule(nodes);
     evaluations = checked_power(nodes, dims, opt.max_rotation_evaluations);
     if (evaluations > opt.max_rotation_evaluations) {
       std::ostringstream os;
