@@ -386,7 +386,7 @@ def cases():
          meas("C", -0.9 + 0.9j, 2e-4, -0.6, "one-sided")],
         noise(damping_rate_per_s=30.0, bath_nbar=0.5, heating_quanta_per_s=15.0))
     add("cat-phase-frequency-noise", {"kind": "cat", "alpha": [1.0, 0.5], "relative_phase_rad": 1.1},
-        [meas("A", 1.0 - 0.5j, 1e-5, 0.5, "symmetric"),
+        [meas("A", 1.0 - 0.5j, 0.0, 0.5, "symmetric"),
          meas("B", 0.6 + 1.2j, 1e-4, -0.2, "one-sided", 0.9),
          meas("C", -1.2 + 0.3j, 2.5e-4, 0.0, "symmetric")],
         noise(frequency_noise_sd_rad_per_s=1500.0, dephasing_rate_per_s=100.0))
@@ -396,7 +396,7 @@ def cases():
         lg3(2.0, (0, 60, 120), T, "one-sided"),
         noise(frequency_noise_sd_rad_per_s=4000.0, heating_quanta_per_s=20.0))
     add("coherent-frequency-noise-and-dephasing", {"kind": "coherent", "alpha": [1.0, 0.2]},
-        [meas("A", 1.2 + 0.3j, 2e-5, 0.2), meas("B", -0.4 + 1.3j, 1.2e-4, -0.7, "one-sided"),
+        [meas("A", 1.2 + 0.3j, 0.0, 0.2), meas("B", -0.4 + 1.3j, 1.2e-4, -0.7, "one-sided"),
          meas("C", 1.0 - 1.0j, 2.5e-4, 0.4)],
         noise(frequency_noise_sd_rad_per_s=2500.0, dephasing_rate_per_s=300.0,
               heating_quanta_per_s=40.0))
