@@ -175,6 +175,7 @@ BootstrapResult stratified_bootstrap(const CellCounts& observed, const CountStat
   result.seed = options.seed;
   result.replicates = B;
   result.level = options.level;
+  result.smoothing = options.smoothing;
   result.quantities.resize(m);
 
   std::vector<double> t(m), se(m, kNaN), t0(m);

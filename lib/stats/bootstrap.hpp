@@ -118,6 +118,7 @@ struct BootstrapResult {
   std::uint64_t seed = 0;
   long replicates = 0;
   double level = 0.95;
+  double smoothing = 0.0;            // the pseudo count used (report "smoothed BCa" when > 0)
   std::vector<BootstrapQuantity> quantities;  // one per statistic value
 };
 

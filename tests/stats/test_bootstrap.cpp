@@ -142,6 +142,7 @@ TEST_CASE("Bootstrap: smoothed resampling keeps empty cells possible and recentr
   const auto r = stratified_bootstrap(c, linear_statistic(k), o);
   const auto& q = r.quantities[0];
   CHECK(q.status == BootstrapStatus::ok);
+  CHECK(r.smoothing == 0.5);
   CHECK(q.bootstrap_se > 0.0);
   // t0 = K at counts + 1/2 rescaled: each correlator sequence has (30.5, 0.5, 0.5) / 31.5 ...
   // C_AB = 2 * (30 / 31.5) = 1.9048, C_BC the same, C_AC = 0 -> t0 = 3.8095 (hand arithmetic).
