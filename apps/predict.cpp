@@ -21,7 +21,7 @@ struct PredictArgs {
   std::string protocol;
   bool json = false;
   std::string output = "-";
-  std::string engine = "weyl";
+  std::string engine = "auto";
 };
 
 int run_predict(const PredictArgs& args) {
@@ -64,15 +64,17 @@ void register_predict(CLI::App& app) {
   cmd->add_option("-o,--output", args->output, "write to FILE instead of standard output (- : stdout)")
       ->type_name("FILE|-");
   cmd->add_option("--engine", args->engine,
-                  "engine for the quantum probabilities: weyl (exact, default), fock, or auto "
-                  "(weyl where it can, fock where it cannot)")
+                  "engine for the quantum probabilities: auto (default: weyl where it applies, "
+                  "fock otherwise; the output says which ran and why), weyl (exact displacement "
+                  "sums) or fock (truncated density matrix)")
       ->check(CLI::IsMember({"weyl", "fock", "auto"}));
   cmd->footer(
       "Examples:\n"
       "  macroreal predict protocols/lg3_thermal.json\n"
       "  macroreal predict protocols/lg3_prepared_cat_conclusive.json --json -o cat.json\n"
       "  cat my_protocol.json | macroreal predict -\n"
-      "  macroreal predict noisy.json --engine auto\n"
+      "  macroreal predict protocols/lg3_tomography_fock1.json   (Fock engine, chosen automatically)\n"
+      "  macroreal predict noisy.json --engine weyl\n"
       "Exit codes: 0 success, 2 bad input (the message names the file and the JSON path).");
   cmd->callback([args] { set_action([args] { return run_predict(*args); }); });
 }

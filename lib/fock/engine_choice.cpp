@@ -52,8 +52,22 @@ EngineChoice choose_engine(EngineKind requested, const State& state,
                                     " intervals needs a " + std::to_string(d) +
                                     "-dimensional angle quadrature in the Weyl engine"};
   }
+  // Say what the Weyl engine will do with this noise: exact sums, or exact sums averaged by
+  // a Gauss-Hermite quadrature over rotation angles (still within its evaluation limit).
+  bool dephasing = false, frequency = false;
+  for (const auto& seq : sequences) {
+    dephasing = dephasing || seq.noise.dephasing_rate_per_s > 0.0;
+    frequency = frequency || seq.noise.frequency_noise_sd_rad_per_s > 0.0;
+  }
+  if (dephasing || frequency)
+    return {EngineKind::weyl,
+            std::string("the state's characteristic function is known and the ") +
+                (dephasing ? "Markovian dephasing" : "quasi-static frequency noise") +
+                " fits the Weyl engine's angle quadrature: exact displacement sums averaged "
+                "by Gauss-Hermite quadrature, no truncation"};
   return {EngineKind::weyl,
-          "closed-form state with Gaussian channels and rotations: exact, no truncation"};
+          "the state's characteristic function is known and the noise is Gaussian channels: "
+          "exact displacement sums, no truncation"};
 }
 
 ModelEngine::ModelEngine(StatePtr state, EngineKind requested,

@@ -342,7 +342,8 @@ PredictionResult predict(const Protocol& proto, const PredictOptions& options) {
   }
 
   res.engine.name = engine.name();
-  if (options.engine_kind == EngineKind::automatic) res.engine.choice_reason = engine.choice().reason;
+  res.engine.requested = to_string(options.engine_kind);
+  res.engine.choice_reason = engine.choice().reason;
   res.engine.fallbacks = engine.fallbacks();
 
   // 3. Cautions (DESIGN.md section 7): what the numbers rest on and do not establish.

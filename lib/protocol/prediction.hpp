@@ -24,11 +24,12 @@
 namespace macroreal {
 
 struct PredictOptions {
-  // Which engine computes the quantum probabilities: the Weyl engine (default: exact, no
-  // truncation), the Fock engine, or the automatic choice of fock/engine_choice.hpp (Weyl
-  // where it can, Fock where the Weyl engine refuses). The classical models always use the
-  // Weyl-engine quadrature settings.
-  EngineKind engine_kind = EngineKind::weyl;
+  // Which engine computes the quantum probabilities: the automatic choice of
+  // fock/engine_choice.hpp (default: Weyl where it applies, Fock for tabulated states, finite
+  // interaction durations and dephasing beyond the Weyl quadrature, and Fock for any sequence
+  // the Weyl engine refuses), or the Weyl or Fock engine only. The classical models always
+  // use the Weyl-engine quadrature settings.
+  EngineKind engine_kind = EngineKind::automatic;
   WeylEngineOptions engine{};               // Gauss-Hermite settings for rotating noise
   FockEngineOptions fock{};                 // cutoff and truncation checks of the Fock engine
   // A sequence whose outcome probabilities sum to 1 within this counts as consistent; a
@@ -110,7 +111,8 @@ struct TestPrediction {
 // How the numbers were obtained (aggregated over every engine call).
 struct EngineSummary {
   std::string name = "weyl";       // the engine used: "weyl" or "fock"
-  std::string choice_reason;       // why that engine (automatic choice), else empty
+  std::string requested = "auto";  // what was asked for: "auto", "weyl" or "fock"
+  std::string choice_reason;       // why that engine ran (the automatic choice or the request)
   std::vector<std::string> fallbacks;  // sequences the automatic choice sent to the Fock engine
   int max_hermite_nodes = 0;       // per rotation dimension; 0: no quadrature was needed
   int max_rotation_dimensions = 0;

@@ -3,12 +3,14 @@
 #include <algorithm>
 #include <cctype>
 #include <cmath>
+#include <filesystem>
 #include <fstream>
 #include <initializer_list>
 #include <iterator>
 
 #include "core/error.hpp"
 #include "core/types.hpp"
+#include "fock/density_matrix_state.hpp"
 #include "phase_space/number_text.hpp"
 #include "phase_space/prepared_state.hpp"
 
@@ -46,13 +48,16 @@ std::string joined(const std::vector<std::string>& names) {
 // The reader's context: the file label for every error, and small checked accessors.
 class Reader {
  public:
-  explicit Reader(std::string file) : file_(std::move(file)) {}
+  Reader(std::string file, std::string base_dir)
+      : file_(std::move(file)), base_dir_(std::move(base_dir)) {}
 
   [[noreturn]] void fail(const std::string& path, const std::string& message) const {
     throw InputError(file_, path, message);
   }
 
   const std::string& file() const { return file_; }
+  // Folder against which relative file names inside the protocol are resolved.
+  const std::string& base_dir() const { return base_dir_; }
 
   // `j` must be an object whose keys are all in `allowed`.
   void expect_object(const json& j, const std::string& path,
@@ -169,6 +174,7 @@ class Reader {
 
  private:
   std::string file_;
+  std::string base_dir_;
 };
 
 // One modular measurement; `with_time` for the "measurements" map (prepared steps have none).
@@ -350,11 +356,21 @@ StatePtr parse_state_impl(const Reader& r, const json& j, const std::string& pat
   }
   if (kind == "density_matrix") {
     r.expect_object(j, path, {"kind", "file"});
-    const std::string f = r.string(r.required(j, "file", path), child(path, "file"), "file");
-    throw UnsupportedError(r.file() + ": " + path +
-                           ": a density_matrix state (file " + shown(json(f)) +
-                           ") needs the Fock engine, which predict cannot use yet; "
-                           "describe the state by its kind (thermal, fock, cat, ...) instead");
+    const std::string pf = child(path, "file");
+    const std::string f = r.string(r.required(j, "file", path), pf, "file");
+    if (f.empty()) r.fail(pf, "file is empty, but must name a density-matrix file (.json or .csv)");
+    // Relative names are relative to the protocol file's folder, so a protocol and its
+    // tabulated state can be moved together.
+    std::filesystem::path resolved(f);
+    if (resolved.is_relative() && !r.base_dir().empty())
+      resolved = std::filesystem::path(r.base_dir()) / resolved;
+    try {
+      return read_density_matrix(resolved.string());
+    } catch (const InputError& e) {
+      // Keep the matrix file's own message (its path, line or field, and the Hermiticity,
+      // trace or smallest-eigenvalue figure) and say where in the protocol it was named.
+      r.fail(pf, "density matrix file " + shown(json(f)) + " is not usable: " + e.what());
+    }
   }
   r.fail(child(path, "kind"),
          "kind = " + shown(json(kind)) +
@@ -547,13 +563,13 @@ void add_generated_sequences(const Reader& r, Protocol& proto) {
 }  // namespace
 
 StatePtr parse_state(const nlohmann::json& j, const std::string& file_label,
-                     const std::string& path) {
-  return parse_state_impl(Reader(file_label), j, path);
+                     const std::string& path, const std::string& base_dir) {
+  return parse_state_impl(Reader(file_label, base_dir), j, path);
 }
 
 Protocol parse_protocol(const nlohmann::json& doc, const std::string& file_label,
                         const ProtocolReadOptions& options) {
-  const Reader r(file_label);
+  const Reader r(file_label, options.base_dir);
   r.expect_object(doc, "", {"format", "title", "state", "readout", "measurements", "noise",
                             "detection", "sequences", "tests"});
   Protocol proto;
@@ -625,7 +641,12 @@ Protocol read_protocol(const std::string& path, const ProtocolReadOptions& optio
   std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError(path, "", "cannot open the protocol file");
   const std::string text{std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
-  return parse_protocol_text(text, path, options);
+  ProtocolReadOptions opts = options;
+  if (opts.base_dir.empty()) {
+    opts.base_dir = std::filesystem::path(path).parent_path().string();
+    if (opts.base_dir.empty()) opts.base_dir = ".";
+  }
+  return parse_protocol_text(text, path, opts);
 }
 
 Protocol parse_protocol_text(const std::string& text, const std::string& label,

@@ -17,6 +17,10 @@ struct ProtocolReadOptions {
   bool generate_needed_sequences = true;
   // A file with no "state" is accepted (for analysis); predictions then refuse.
   bool require_state = false;
+  // Folder against which relative file names in the protocol (density_matrix states) are
+  // resolved. read_protocol: empty = the protocol file's own folder; parse_protocol and
+  // parse_protocol_text: empty = the current directory.
+  std::string base_dir;
 };
 
 Protocol read_protocol(const std::string& path, const ProtocolReadOptions& options = {});
@@ -27,7 +31,10 @@ Protocol parse_protocol_text(const std::string& text, const std::string& file_la
 Protocol parse_protocol(const nlohmann::json& doc, const std::string& file_label,
                         const ProtocolReadOptions& options = {});
 // A state object (the "state" field or a "prepared.from"), used also for nested states.
+// A "density_matrix" state reads its file (JSON or CSV by extension, fock/density_matrix_state.hpp)
+// relative to `base_dir` (empty: the current directory); a bad matrix is an InputError at
+// "<path>.file" carrying the matrix file's own message (e.g. the smallest eigenvalue).
 StatePtr parse_state(const nlohmann::json& j, const std::string& file_label,
-                     const std::string& path);
+                     const std::string& path, const std::string& base_dir = "");
 
 }  // namespace macroreal

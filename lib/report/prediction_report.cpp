@@ -172,6 +172,7 @@ nlohmann::ordered_json prediction_json(const PredictionResult& r) {
                 {"classical_model_applies", r.classical_model_applies}};
   j["readout"] = to_string(r.readout);
   j["engine"] = {{"name", r.engine.name},
+                 {"requested", r.engine.requested},
                  {"hermite_nodes", r.engine.max_hermite_nodes},
                  {"rotation_dimensions", r.engine.max_rotation_dimensions},
                  {"error_estimate", r.engine.max_error_estimate},
@@ -220,7 +221,10 @@ std::string prediction_text(const PredictionResult& r) {
                    " dimensions, error estimate <= " + sci(r.engine.max_error_estimate);
   eng += ", " + std::to_string(r.engine.engine_calls) + " engine calls";
   head.push_back({"engine", eng});
-  if (!r.engine.choice_reason.empty()) head.push_back({"", r.engine.choice_reason});
+  if (!r.engine.choice_reason.empty())
+    head.push_back({"", (r.engine.requested == "auto" ? "chosen automatically: "
+                                                      : std::string("not automatic: ")) +
+                            r.engine.choice_reason});
   for (const auto& f : r.engine.fallbacks) head.push_back({"", "fallback: " + f});
   head.push_back({"checks", r.status == "ok" ? "outcome probabilities of every sequence sum to 1 "
                                          "(max deviation " + sci(r.max_sum_deviation) + ")"

@@ -185,11 +185,13 @@ TEST_CASE("predict CLI: bad input exits 2 with the file and path on stderr, noth
     CHECK(r.code == 2);
     CHECK(r.err.find("/nonexistent/protocol.json") != std::string::npos);
     d = thermal_doc();
-    d["state"] = {{"kind", "density_matrix"}, {"file", "rho.json"}};
+    d["state"] = {{"kind", "density_matrix"}, {"file", "no_such_rho.json"}};
     r = run("predict '" + write_bad("rho.json", d).string() + "'");
     CHECK(r.code == 2);
     CHECK(r.out.empty());
-    CHECK(r.err.find("Fock engine") != std::string::npos);
+    CHECK(r.err.find("state.file") != std::string::npos);
+    CHECK(r.err.find("no_such_rho.json") != std::string::npos);
+    CHECK(r.err.find("cannot open") != std::string::npos);
   }
   SECTION("unknown engine") {
     const Run r = run("predict --engine magic '" + shipped("lg3_thermal.json") + "'");

@@ -3,6 +3,7 @@
 // forms used to confirm that parameters reach the states are those of DESIGN.md section 2.
 #include <cmath>
 #include <string>
+#include <tuple>
 
 #include <catch2/catch.hpp>
 #include <nlohmann/json.hpp>
@@ -332,13 +333,42 @@ TEST_CASE("Protocol reader: states of every kind", "[protocol]") {
              "steps": [{"beta": [1, 0]}], "outcomes": "x"})", "state.outcomes",
            "must be '+' or '-'");
   }
-  SECTION("density_matrix names the Fock engine") {
+  SECTION("density_matrix reads its file relative to base_dir") {
+    const std::string dir = std::string(MACROREAL_SOURCE_DIR) + "/protocols";
+    const StatePtr s = parse_state(
+        json::parse(R"({"kind": "density_matrix", "file": "fock1_tomography.csv"})"),
+        "test.json", "state", dir);
+    // chi(0) = Tr rho = 1 (common practice, no source); the invented file's rho_00 = 0.05,
+    // rho_11 = 0.92, rho_22 = 0.03, rho_01 = 0.02. For real beta the coherence term
+    // c (beta - conj beta) vanishes and chi = e^{-b^2/2} sum_n p_n L_n(b^2) with
+    // L_1(x) = 1 - x, L_2(x) = 1 - 2x + x^2/2 (Abramowitz & Stegun 22.2.13).
+    CHECK_CLOSE(s->characteristic(cplx(0.0, 0.0)).real(), 1.0, 1e-14, 0);
+    const double x = 0.49;
+    const double expected =
+        std::exp(-x / 2) * (0.05 + 0.92 * (1 - x) + 0.03 * (1 - 2 * x + x * x / 2));
+    CHECK_CLOSE(s->characteristic(cplx(0.7, 0.0)).real(), expected, 1e-13, 0);
     try {
-      state_of(R"({"kind": "density_matrix", "file": "rho.json"})");
+      parse_state(json::parse(R"({"kind": "density_matrix", "file": "missing.csv"})"),
+                  "test.json", "state", dir);
       FAIL("no error");
-    } catch (const UnsupportedError& e) {
-      CHECK(std::string(e.what()).find("Fock engine") != std::string::npos);
-      CHECK(std::string(e.what()).find("state") != std::string::npos);
+    } catch (const InputError& e) {
+      CHECK(e.file() == "test.json");
+      CHECK(e.where() == "state.file");
+      CHECK(std::string(e.what()).find("missing.csv") != std::string::npos);
+    }
+    for (const auto& [text, where, rule] :
+         {std::tuple<const char*, const char*, const char*>{
+              R"({"kind": "density_matrix", "file": ""})", "state.file", "file is empty"},
+          {R"({"kind": "density_matrix", "file": "a.csv", "extra": 1})", "state.extra",
+           "unknown field"}}) {
+      try {
+        parse_state(json::parse(text), "test.json", "state", dir);
+        FAIL("no error for " << where);
+      } catch (const InputError& e) {
+        INFO(e.what());
+        CHECK(e.where() == where);
+        CHECK(e.message().find(rule) != std::string::npos);
+      }
     }
   }
 }
