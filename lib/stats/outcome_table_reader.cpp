@@ -223,7 +223,7 @@ inline bool eight_digits(const char* p, std::size_t n, std::uint64_t& value) {
   return true;
 }
 
-// `f` must have 8 readable bytes after its end.
+// `f` must have 16 readable bytes from its start and 8 after its end.
 bool parse_time(std::string_view f, Decimal& d) {
   static constexpr double kInvPow10[16] = {1e0,  1e-1, 1e-2,  1e-3,  1e-4,  1e-5,  1e-6,  1e-7,
                                            1e-8, 1e-9, 1e-10, 1e-11, 1e-12, 1e-13, 1e-14, 1e-15};
@@ -238,7 +238,20 @@ bool parse_time(std::string_view f, Decimal& d) {
   }
   // Fast path: [int digits <= 8][.[fraction digits <= 8]], 1 to 15 digits in all.
   if (n > 0 && n <= 17) {
-    const char* dot = static_cast<const char*>(std::memchr(p, '.', n));
+    // The '.' among the first n <= 17 bytes: one 16-byte compare (the padding after every
+    // buffer makes the bytes after the field readable) instead of a memchr call per row.
+    const char* dot = nullptr;
+#if defined(__SSE2__)
+    {
+      const __m128i v = _mm_loadu_si128(reinterpret_cast<const __m128i*>(p));
+      std::uint32_t m = static_cast<std::uint32_t>(_mm_movemask_epi8(_mm_cmpeq_epi8(v, _mm_set1_epi8('.'))));
+      if (n < 16) m &= (std::uint32_t{1} << n) - 1;
+      if (m != 0) dot = p + __builtin_ctz(m);
+      else if (n > 16 && p[16] == '.') dot = p + 16;
+    }
+#else
+    dot = static_cast<const char*>(std::memchr(p, '.', n));
+#endif
     const std::size_t ni = dot ? static_cast<std::size_t>(dot - p) : n;
     const std::size_t nf = dot ? n - ni - 1 : 0;
     std::uint64_t a = 0, b = 0;
