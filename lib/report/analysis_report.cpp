@@ -32,7 +32,13 @@ std::string pval(double p) {
 
 std::string interval(const IntervalEstimate& e) {
   if (!e.valid) return "n/a";
-  return "[" + num(e.lo) + ", " + num(e.hi) + "]";
+  // Appended piecewise: `"[" + std::string` trips GCC 12's false -Wrestrict (GCC PR 105329).
+  std::string s(1, '[');
+  s += num(e.lo);
+  s += ", ";
+  s += num(e.hi);
+  s += ']';
+  return s;
 }
 
 std::string join(const std::vector<std::string>& v, const std::string& sep = "") {
