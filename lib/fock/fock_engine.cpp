@@ -76,6 +76,7 @@ FockEngine::FockEngine(StatePtr state, FockEngineOptions options)
 }
 
 double FockEngine::duration_of(const TimedMeasurement& m) const {
+  if (m.duration_s > 0.0) return m.duration_s;  // the sequence's own duration comes first
   const auto it = options_.interaction_duration_s.find(m.label);
   return it == options_.interaction_duration_s.end() ? 0.0 : it->second;
 }
@@ -331,6 +332,8 @@ FockValue FockEngine::run(const MeasurementSequence& seq, std::size_t k, Plan pl
   }
   out.value.value = clamp_round_off(v, lo, 1.0);
   out.value.error_estimate = d.truncation_change + d.slicing_change + d.rotation_change;
+  out.value.slicing_change = d.slicing_change;
+  out.value.slices = d.slices;
   return out;
 }
 

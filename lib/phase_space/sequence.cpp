@@ -28,12 +28,29 @@ void MeasurementSequence::validate() const {
     if (!(std::isfinite(s.time_s) && s.time_s >= 0.0))
       throw DomainError(step_name(s, i) + ": time_s = " + detail::number_text(s.time_s) +
                         ", but must be finite and >= 0");
+    if (!(std::isfinite(s.duration_s) && s.duration_s >= 0.0))
+      throw DomainError(step_name(s, i) + ": duration_s = " +
+                        detail::number_text(s.duration_s) + ", but must be finite and >= 0");
+    // Relative slack of 1e-12 for end times written as sums of decimal numbers.
+    if (i > 0 && steps[i - 1].duration_s > 0.0 &&
+        s.time_s < steps[i - 1].end_s() - 1e-12 * steps[i - 1].end_s())
+      throw DomainError(step_name(s, i) + ": time_s = " + detail::number_text(s.time_s) +
+                        " is before the interaction of " + step_name(steps[i - 1], i - 1) +
+                        " (time_s " + detail::number_text(steps[i - 1].time_s) +
+                        ", duration_s " + detail::number_text(steps[i - 1].duration_s) +
+                        ") has ended");
     if (i > 0 && s.time_s < steps[i - 1].time_s)
       throw DomainError(step_name(s, i) + ": time_s = " + detail::number_text(s.time_s) +
                         " is earlier than " + step_name(steps[i - 1], i - 1) + " at " +
                         detail::number_text(steps[i - 1].time_s) +
                         ", but times must not decrease along a sequence");
   }
+}
+
+bool MeasurementSequence::has_durations() const {
+  for (const auto& s : steps)
+    if (s.duration_s > 0.0) return true;
+  return false;
 }
 
 std::string to_string(const OutcomeString& o) {

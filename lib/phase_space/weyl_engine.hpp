@@ -11,6 +11,14 @@
 // `rotation_tolerance`; the last difference is reported as the error estimate. When the
 // number of evaluations would exceed `max_rotation_evaluations` the engine throws
 // UnsupportedError naming the Fock engine (--engine fock) as the one to use.
+//
+// Finite-duration measurements (TimedMeasurement::duration_s > 0, issue 4): the displacement is
+// applied in n = interaction_slices slices with the Gaussian noise in between, exactly as in
+// the Fock engine's discretisation (sliced_measurement.hpp); each slice maps a displacement to
+// a displacement, so the sliced effect operator stays a finite Weyl sum. The engine evaluates
+// n and 2n slices, returns the Richardson combination (4 v_2n - v_n)/3 and reports
+// |v_2n - v_n| as the slicing error estimate. Durations together with rotations (dephasing,
+// frequency noise) are refused with UnsupportedError naming the Fock engine.
 #pragma once
 
 #include <string>
@@ -25,16 +33,18 @@ struct WeylEngineOptions {
   int max_hermite_nodes = 384;           // 1-2 angles only: the evaluation limit caps more
   double rotation_tolerance = 1e-12;       // absolute, on each probability
   long max_rotation_evaluations = 2000000; // product-quadrature size limit
-  int interaction_slices = 1;              // finite-duration measurement slices (issue 4)
+  int interaction_slices = 16;             // slices n of a finite-duration measurement (also 2n)
 };
 
 // A value with how it was obtained.
 struct EngineValue {
   double value = 0.0;
-  double error_estimate = 0.0;  // quadrature error estimate (0 when exact)
+  double error_estimate = 0.0;  // quadrature or slicing error estimate (0 when exact)
   int hermite_nodes = 0;        // nodes per rotation dimension used (0: no quadrature)
   int rotation_dimensions = 0;
   long evaluations = 1;
+  double slicing_change = 0.0;  // |v(2n) - v(n)| for finite-duration measurements
+  int slices = 0;               // n (0: every measurement instantaneous)
 };
 
 class WeylEngine {

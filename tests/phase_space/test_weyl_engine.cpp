@@ -200,6 +200,6 @@ TEST_CASE("WeylEngine: input validation", "[phase_space]") {
   CHECK(to_string(parse_outcomes("+-+")) == "+-+");
   CHECK_THROWS_AS(parse_outcomes("+x"), DomainError);
   WeylEngineOptions opt;
-  opt.interaction_slices = 4;  // not implemented: refused, not ignored
-  CHECK_THROWS_AS(WeylEngine(make_thermal(0.1), opt), UnsupportedError);
+  opt.interaction_slices = 0;
+  CHECK_THROWS_AS(WeylEngine(make_thermal(0.1), opt), DomainError);
 }
