@@ -29,7 +29,7 @@ MeasurementSequence Protocol::sequence_of(const std::vector<std::string>& steps)
   seq.noise = noise;
   for (const auto& name : steps) {
     const auto& spec = measurement(name);
-    seq.steps.push_back({name, spec.measurement, spec.time_s});
+    seq.steps.push_back({name, spec.measurement, spec.time_s, spec.duration_s});
   }
   return seq;
 }

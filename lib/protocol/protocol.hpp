@@ -22,6 +22,7 @@ struct MeasurementSpec {
   std::string name;
   ModularMeasurement measurement;
   double time_s = 0.0;
+  double duration_s = 0.0;  // interaction duration (optional "duration_s", >= 0)
 };
 
 // One configuration that is actually run. Under destructive readout `dark_is[k]` says which

@@ -181,7 +181,8 @@ class Reader {
 MeasurementSpec parse_measurement(const Reader& r, const json& j, const std::string& path,
                                   const std::string& name, bool with_time) {
   if (with_time)
-    r.expect_object(j, path, {"beta", "beta_polar", "phase_deg", "split", "contrast", "time_s"});
+    r.expect_object(j, path, {"beta", "beta_polar", "phase_deg", "split", "contrast", "time_s",
+                               "duration_s"});
   else
     r.expect_object(j, path, {"beta", "beta_polar", "phase_deg", "split", "contrast"});
   MeasurementSpec spec;
@@ -223,6 +224,9 @@ MeasurementSpec parse_measurement(const Reader& r, const json& j, const std::str
   if (with_time)
     spec.time_s =
         r.nonnegative(r.number_or(j, "time_s", path, 0.0), child(path, "time_s"), "time_s");
+  if (with_time)
+    spec.duration_s = r.nonnegative(r.number_or(j, "duration_s", path, 0.0),
+                                    child(path, "duration_s"), "duration_s");
   return spec;
 }
 

@@ -8,6 +8,7 @@
 #include "core/error.hpp"
 #include "fock/fock_engine.hpp"
 #include "phase_space/weyl_engine.hpp"
+#include "protocol/protocol_reader.hpp"
 #include "support/compare.hpp"
 
 using namespace macroreal;
@@ -167,4 +168,25 @@ TEST_CASE("Weyl slices: validation and refusals", "[phase_space]") {
   CHECK_THROWS_AS(e.correlator(seq), UnsupportedError);
   seq.steps[0].duration_s = seq.steps[1].duration_s = 0.0;
   CHECK_NOTHROW(e.correlator(seq));
+}
+
+TEST_CASE("Weyl slices: protocol files carry duration_s into the sequence", "[phase_space]") {
+  // Invented protocol text; the reader's rule (optional, >= 0) is this project's format.
+  const std::string text = R"({
+    "format": "macroreal-protocol/1",
+    "title": "duration test, invented",
+    "state": {"kind": "thermal", "nbar": 0.3},
+    "measurements": {
+      "A": {"beta": [0.5, 0.0], "time_s": 0.0, "duration_s": 2e-5},
+      "B": {"beta": [0.0, 0.5], "time_s": 1e-4}
+    },
+    "sequences": [{"name": "AB+", "steps": ["A", "B"], "dark_is": ["+", "+"]}],
+    "tests": [{"kind": "nsit", "from": "A", "to": "B"}]
+  })";
+  const auto seq = parse_protocol_text(text, "test.json").sequence_of({"A", "B"});
+  CHECK(seq.steps[0].duration_s == 2e-5);
+  CHECK(seq.steps[1].duration_s == 0.0);
+  std::string bad = text;
+  bad.replace(bad.find("2e-5"), 4, "-1e-5");
+  CHECK_THROWS_AS(parse_protocol_text(bad, "test.json"), InputError);
 }
