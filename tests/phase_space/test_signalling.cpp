@@ -13,13 +13,14 @@ namespace {
 MeasurementSequence two_steps(Split split_a, double contrast_b) {
   MeasurementSequence seq;
   TimedMeasurement a, b;
-  a.label = "A";
+  // Built from a char list: GCC 12 warns falsely (-Wrestrict) on assigning a short literal here.
+  a.label = std::string{'A'};
   a.measurement.beta = cplx(1.4, 0.6);
   a.measurement.phase_rad = 0.5;
   a.measurement.split = split_a;
   a.measurement.contrast = 0.8;
   a.time_s = 50e-6;
-  b.label = "B";
+  b.label = std::string{'B'};
   b.measurement.beta = std::polar(1.8, 1.0);
   b.measurement.phase_rad = -0.3;
   b.measurement.contrast = contrast_b;
