@@ -80,8 +80,23 @@ def k3_from(ms, rho0, kraus, channel):
     return corr(0, 1) + corr(1, 2) - corr(0, 2)
 
 
+def weyl_seconds(path):
+    """CPU seconds per K_3 of BM_WeylEngine_K3Thermal from a Google Benchmark JSON file
+    (bench_weyl --benchmark_out=FILE --benchmark_out_format=json)."""
+    import json
+    with open(path) as f:
+        runs = json.load(f)["benchmarks"]
+    scale = {"ns": 1e-9, "us": 1e-6, "ms": 1e-3, "s": 1.0}
+    for r in runs:
+        if r["name"].startswith("BM_WeylEngine_K3Thermal") and r.get("run_type", "iteration") == "iteration":
+            return r["cpu_time"] * scale[r["time_unit"]]
+    raise SystemExit(f"{path}: no BM_WeylEngine_K3Thermal entry")
+
+
 def main(argv):
+    # usage: qutip_k3_timing.py [REPEATS] [WEYL_BENCH_JSON]
     repeats = int(argv[1]) if len(argv) > 1 else 5
+    weyl = weyl_seconds(argv[2]) if len(argv) > 2 else None
     case = protocol()
     _, N, N_prev, change, _ = ref.converged(case, case["N0"])
     print(f"converged cutoff N = {N} (change vs N = {N_prev}: {change:.1e})")
@@ -96,6 +111,9 @@ def main(argv):
         # the other processes.
         print(f"{name}: K_3 = {k:.12f}, {min(times):.3f} s per K_3 (best of {repeats}), "
               f"median {sorted(times)[len(times) // 2]:.3f} s; CPU {min(cpu):.3f} s; cutoff {N}")
+        if weyl:
+            print(f"  Weyl engine {weyl * 1e9:.0f} ns CPU per K_3: ratio {min(cpu) / weyl:.3g}x "
+                  f"(CPU time, target >= 1000x)")
 
 
 if __name__ == "__main__":
