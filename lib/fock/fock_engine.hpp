@@ -52,7 +52,7 @@ struct FockEngineOptions {
   bool check_truncation = true;      // recompute with the cutoff grown by 25 %
   double truncation_tolerance = 0.0; // > 0: required |change|, else UnsupportedError
   int initial_hermite_nodes = 12;    // quasi-static frequency noise quadrature
-  int max_hermite_nodes = 96;
+  int max_hermite_nodes = 384;      // as the Weyl engine: angle spreads near 1 rad need > 96
   // Quadrature tolerance: looser than the Weyl engine's 1e-12 because the tabulated state's
   // round-off (~1e-13 per element, fock_tabulation.hpp) puts a noise floor under P(delta).
   double rotation_tolerance = 1e-11;

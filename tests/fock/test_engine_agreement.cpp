@@ -18,7 +18,7 @@ namespace {
 void sweep(int count, std::uint64_t seed, const testing::SweepLimits& lim, double tol) {
   testing::Draw d(seed);
   double worst = 0.0;
-  int refused = 0;
+  int refused = 0, refused_fock = 0;
   for (int i = 0; i < count; ++i) {
     const auto p = testing::random_protocol(d, i, lim);
     FockEngineOptions fo;
@@ -39,7 +39,15 @@ void sweep(int count, std::uint64_t seed, const testing::SweepLimits& lim, doubl
       ++refused;
       continue;
     }
-    const double pf = fock.probability(p.seq, p.outcomes).value;
+    double pf = 0.0;
+    try {
+      pf = fock.probability(p.seq, p.outcomes).value;
+    } catch (const UnsupportedError&) {
+      // The Fock engine's own quadrature floor (tabulation round-off ~1e-13 per element)
+      // can stop it short of its tolerance: it refuses rather than return an unconverged value.
+      ++refused_fock;
+      continue;
+    }
     CHECK_CLOSE(pf, pw, tol, 0.0);
     const double cf = fock.correlator(p.seq).value, cw = weyl.correlator(p.seq).value;
     CHECK_CLOSE(cf, cw, tol, 0.0);
@@ -50,9 +58,10 @@ void sweep(int count, std::uint64_t seed, const testing::SweepLimits& lim, doubl
       worst = std::max(worst, std::abs(lf - lw));
     }
   }
-  WARN("largest |Fock - Weyl| over " << count - refused << " protocols: " << worst << " ("
-       << refused << " refused by the Weyl engine's quadrature limit)");
-  CHECK(refused <= count / 20);
+  WARN("largest |Fock - Weyl| over " << count - refused - refused_fock << " protocols: " << worst
+       << " (" << refused << " refused by the Weyl engine's quadrature limit, " << refused_fock
+       << " by the Fock engine's)");
+  CHECK(refused + refused_fock <= count / 20);
 }
 
 }  // namespace
