@@ -1,4 +1,5 @@
 #include "report/analysis_report.hpp"
+#include "report/text_layout.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -47,52 +48,8 @@ std::string join(const std::vector<std::string>& v, const std::string& sep = "")
   return s;
 }
 
-// A fixed-width table: column widths from the content, two spaces between columns.
-class Table {
- public:
-  explicit Table(std::vector<bool> right_aligned) : right_(std::move(right_aligned)) {}
-  void row(std::vector<std::string> cells) { rows_.push_back(std::move(cells)); }
-  std::string str(const std::string& indent = "  ") const {
-    std::vector<std::size_t> w(right_.size(), 0);
-    for (const auto& r : rows_)
-      for (std::size_t c = 0; c < r.size() && c < w.size(); ++c) w[c] = std::max(w[c], r[c].size());
-    std::string out;
-    for (const auto& r : rows_) {
-      std::string line = indent;
-      for (std::size_t c = 0; c < w.size(); ++c) {
-        const std::string cell = c < r.size() ? r[c] : "";
-        const std::string pad(w[c] - cell.size(), ' ');
-        line += right_[c] ? pad + cell : cell + pad;
-        if (c + 1 < w.size()) line += "  ";
-      }
-      while (!line.empty() && line.back() == ' ') line.pop_back();
-      out += line + "\n";
-    }
-    return out;
-  }
-
- private:
-  std::vector<bool> right_;
-  std::vector<std::vector<std::string>> rows_;
-};
-
-// Word wrap at `width` columns; the first line starts with `first`, the others with `rest`.
-std::string wrap(const std::string& text, const std::string& first, const std::string& rest,
-                 std::size_t width = 96) {
-  std::istringstream in(text);
-  std::string word, line = first, out;
-  bool empty = true;
-  while (in >> word) {
-    if (!empty && line.size() + 1 + word.size() > width) {
-      out += line + "\n";
-      line = rest;
-      empty = true;
-    }
-    line += (empty ? "" : " ") + word;
-    empty = false;
-  }
-  return out + line + "\n";
-}
+using detail::Table;
+using detail::wrap;
 
 ojson interval_json(const IntervalEstimate& e) {
   ojson j;
