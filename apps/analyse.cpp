@@ -111,4 +111,8 @@ void register_analyse(CLI::App& app) {
   cmd->callback([args] { set_action([args] { return run_analyse(*args); }); });
 }
 
+namespace {
+const CommandRegistration analyse_registration{50, "analyse", register_analyse};
+}  // namespace
+
 }  // namespace macroreal::apps

@@ -79,4 +79,8 @@ void register_predict(CLI::App& app) {
   cmd->callback([args] { set_action([args] { return run_predict(*args); }); });
 }
 
+namespace {
+const CommandRegistration predict_registration{20, "predict", register_predict};
+}  // namespace
+
 }  // namespace macroreal::apps
