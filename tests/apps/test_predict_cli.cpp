@@ -1,9 +1,6 @@
 // `macroreal predict` as a program: exit codes, streams, JSON keys of DESIGN.md section 8.
 // Runs the real executable (MACROREAL_EXE) through the shell with stdout and stderr captured
 // in separate files.
-#include <sys/wait.h>
-#include <unistd.h>
-
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
@@ -13,51 +10,21 @@
 #include <catch2/catch.hpp>
 #include <nlohmann/json.hpp>
 
+#include "support/cli_run.hpp"
+
 namespace fs = std::filesystem;
 using nlohmann::json;
 
 namespace {
 
-struct Run {
-  int code = -1;
-  std::string out, err;
-};
+using Run = macroreal::test_support::CliRun;
+using macroreal::test_support::slurp;
 
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-fs::path temp_dir() {
-  // One directory per test process, removed when the process ends.
-  struct Owned {
-    fs::path path = fs::temp_directory_path() /
-                    ("macroreal_predict_cli_" + std::to_string(::getpid()));
-    ~Owned() {
-      std::error_code ec;
-      fs::remove_all(path, ec);
-    }
-  };
-  static Owned dir;
-  fs::create_directories(dir.path);
-  return dir.path;
-}
+fs::path temp_dir() { return macroreal::test_support::scratch_dir("predict_cli"); }
 
 // `args` is appended to the command line as written (the caller quotes).
 Run run(const std::string& args, const std::string& stdin_file = "") {
-  const fs::path d = temp_dir();
-  const fs::path out = d / "stdout.txt", err = d / "stderr.txt";
-  std::string cmd = std::string("'") + MACROREAL_EXE + "' " + args + " >'" + out.string() +
-                    "' 2>'" + err.string() + "'";
-  if (!stdin_file.empty()) cmd += " <'" + stdin_file + "'";
-  const int status = std::system(cmd.c_str());
-  Run r;
-  r.code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-  r.out = slurp(out);
-  r.err = slurp(err);
-  return r;
+  return macroreal::test_support::run_macroreal(args, "predict_cli", stdin_file, temp_dir());
 }
 
 std::string shipped(const char* name) {

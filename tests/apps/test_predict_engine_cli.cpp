@@ -1,9 +1,6 @@
 // `macroreal predict` and the engine choice (default auto): which engine ran and why, in the
 // text and JSON output; tabulated density-matrix states read relative to the protocol file;
 // bad matrix files exit 2 with the matrix file's own message.
-#include <sys/wait.h>
-#include <unistd.h>
-
 #include <cmath>
 #include <cstdlib>
 #include <filesystem>
@@ -14,6 +11,7 @@
 #include <catch2/catch.hpp>
 #include <nlohmann/json.hpp>
 
+#include "support/cli_run.hpp"
 #include "support/compare.hpp"
 
 namespace fs = std::filesystem;
@@ -21,46 +19,16 @@ using nlohmann::json;
 
 namespace {
 
-struct Run {
-  int code = -1;
-  std::string out, err;
-};
+using Run = macroreal::test_support::CliRun;
+using macroreal::test_support::slurp;
 
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-fs::path temp_dir() {
-  // One directory per test process, removed when the process ends.
-  struct Owned {
-    fs::path path = fs::temp_directory_path() /
-                    ("macroreal_predict_engine_" + std::to_string(::getpid()));
-    ~Owned() {
-      std::error_code ec;
-      fs::remove_all(path, ec);
-    }
-  };
-  static Owned dir;
-  fs::create_directories(dir.path);
-  return dir.path;
-}
+fs::path temp_dir() { return macroreal::test_support::scratch_dir("predict_engine"); }
 
 // Runs from `cwd` (the temporary directory unless given) so that relative matrix paths are
 // resolved against the protocol's folder, not the working directory.
 Run run(const std::string& args, const fs::path& cwd = {}) {
-  const fs::path d = temp_dir();
-  const fs::path out = d / "stdout.txt", err = d / "stderr.txt";
-  std::string cmd = "cd '" + (cwd.empty() ? d : cwd).string() + "' && '" + MACROREAL_EXE +
-                    "' " + args + " >'" + out.string() + "' 2>'" + err.string() + "'";
-  const int status = std::system(cmd.c_str());
-  Run r;
-  r.code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-  r.out = slurp(out);
-  r.err = slurp(err);
-  return r;
+  return macroreal::test_support::run_macroreal(args, "predict_engine", "",
+                                                cwd.empty() ? temp_dir() : cwd);
 }
 
 std::string shipped(const char* name) {

@@ -10,6 +10,7 @@
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
+#include <map>
 #include <sstream>
 #include <string>
 
@@ -28,22 +29,35 @@ inline std::string slurp(const std::filesystem::path& p) {
 }
 
 // A scratch directory private to this test process and `tag` (parallel ctest runs differ in
-// pid, different tests in one process differ in tag).
+// pid, different test files in one process differ in tag), removed when the process ends.
 inline std::filesystem::path scratch_dir(const std::string& tag) {
-  const auto d = std::filesystem::temp_directory_path() /
+  struct Owned {
+    std::filesystem::path path;
+    ~Owned() {
+      std::error_code ec;
+      std::filesystem::remove_all(path, ec);
+    }
+  };
+  static std::map<std::string, Owned> dirs;
+  auto& owned = dirs[tag];
+  if (owned.path.empty())
+    owned.path = std::filesystem::temp_directory_path() /
                  ("macroreal_" + tag + "_" + std::to_string(::getpid()));
-  std::filesystem::create_directories(d);
-  return d;
+  std::filesystem::create_directories(owned.path);
+  return owned.path;
 }
 
 // `args` is appended to the command line as written (the caller quotes); `stdin_file`, when
-// given, is redirected to the program's standard input.
+// given, is redirected to the program's standard input; the program runs in `cwd` (default:
+// the source directory, so relative paths such as protocols/... work).
 inline CliRun run_macroreal(const std::string& args, const std::string& tag,
-                            const std::string& stdin_file = "") {
+                            const std::string& stdin_file = "",
+                            const std::filesystem::path& cwd = {}) {
   const auto d = scratch_dir(tag);
   const auto out = d / "stdout.txt", err = d / "stderr.txt";
-  std::string cmd = std::string("cd '") + MACROREAL_SOURCE_DIR + "' && '" + MACROREAL_EXE +
-                    "' " + args + " >'" + out.string() + "' 2>'" + err.string() + "'";
+  const std::string dir = cwd.empty() ? std::string(MACROREAL_SOURCE_DIR) : cwd.string();
+  std::string cmd = "cd '" + dir + "' && '" + MACROREAL_EXE + "' " + args + " >'" +
+                    out.string() + "' 2>'" + err.string() + "'";
   if (!stdin_file.empty()) cmd += " <'" + stdin_file + "'";
   const int status = std::system(cmd.c_str());
   CliRun r;
