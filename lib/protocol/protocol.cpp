@@ -1,6 +1,7 @@
 #include "protocol/protocol.hpp"
 
 #include <algorithm>
+#include <cmath>
 
 #include "core/error.hpp"
 
@@ -68,6 +69,44 @@ std::string generated_sequence_name(const std::vector<std::string>& steps,
       name += dark_is[k] > 0 ? '+' : '-';
   }
   return name;
+}
+
+const std::vector<std::string>& noise_field_names() {
+  static const std::vector<std::string> names{
+      "heating_quanta_per_s",        "damping_rate_per_s",
+      "bath_nbar",                   "dephasing_rate_per_s",
+      "frequency_noise_sd_rad_per_s", "force_noise_quanta_per_s"};
+  return names;
+}
+
+double& noise_field(NoiseModel& noise, const std::string& field) {
+  if (field == "heating_quanta_per_s") return noise.heating_quanta_per_s;
+  if (field == "damping_rate_per_s") return noise.damping_rate_per_s;
+  if (field == "bath_nbar") return noise.bath_nbar;
+  if (field == "dephasing_rate_per_s") return noise.dephasing_rate_per_s;
+  if (field == "frequency_noise_sd_rad_per_s") return noise.frequency_noise_sd_rad_per_s;
+  if (field == "force_noise_quanta_per_s") return noise.force_noise_quanta_per_s;
+  std::string known;
+  for (const auto& n : noise_field_names()) known += (known.empty() ? "" : ", ") + n;
+  throw DomainError("noise field '" + field + "' is unknown (known: " + known + ")");
+}
+
+double noise_field(const NoiseModel& noise, const std::string& field) {
+  return noise_field(const_cast<NoiseModel&>(noise), field);
+}
+
+Protocol with_noise_value(const Protocol& protocol, const std::string& field, double value) {
+  Protocol copy = protocol;
+  double& slot = noise_field(copy.noise, field);
+  if (!(std::isfinite(value) && value >= 0.0))
+    throw DomainError("noise " + field + " = " + std::to_string(value) +
+                      ", but must be finite and >= 0");
+  slot = value;
+  auto& u = copy.uncertain_noise;
+  u.erase(std::remove_if(u.begin(), u.end(),
+                         [&](const UncertainValue& v) { return v.field == field; }),
+          u.end());
+  return copy;
 }
 
 }  // namespace macroreal

@@ -49,6 +49,19 @@ struct DetectionSpec {
   std::optional<double> threshold; // photon counts <= threshold read dark
 };
 
+// A noise parameter known only up to an uncertainty, for robust design (issue 6). The file
+// gives either {"mean": m, "sd": s} (sd >= 0; low/high empty) or {"range": [lo, hi]} (low and
+// high set, mean = (lo + hi)/2, sd = 0: no distribution inside the range is implied). The
+// protocol's NoiseModel holds `mean`, so predictions use the mean / midpoint. `field` is the
+// JSON name of the NoiseModel field, e.g. "heating_quanta_per_s".
+struct UncertainValue {
+  std::string field;
+  double mean = 0.0;
+  double sd = 0.0;
+  std::optional<double> low, high;
+  bool is_range() const { return low.has_value() && high.has_value(); }
+};
+
 struct Protocol {
   std::string file;                 // where it came from (for messages)
   std::string title;
@@ -57,6 +70,7 @@ struct Protocol {
   Readout readout = Readout::destructive;
   std::map<std::string, MeasurementSpec> measurements;
   NoiseModel noise;
+  std::vector<UncertainValue> uncertain_noise;  // in file order; noise holds the means
   DetectionSpec detection;
   std::vector<SequenceSpec> sequences;  // listed ones first, then generated ones
   std::vector<TestSpec> tests;
@@ -68,6 +82,19 @@ struct Protocol {
   std::vector<std::vector<std::string>> step_sets_needed() const;
   const SequenceSpec* find_sequence(const std::string& name) const;
 };
+
+// The JSON names of the NoiseModel fields, in file order ("heating_quanta_per_s", ...).
+const std::vector<std::string>& noise_field_names();
+// Reference to the NoiseModel member named by its JSON field name; throws DomainError
+// naming the known fields for an unknown name.
+double& noise_field(NoiseModel& noise, const std::string& field);
+double noise_field(const NoiseModel& noise, const std::string& field);
+
+// A copy of `protocol` with one noise parameter set to `value` (e.g. a draw from its
+// uncertainty); that field's entry in uncertain_noise is dropped, since the copy describes
+// one fixed realisation. Throws DomainError for an unknown field or a value that is not
+// finite and >= 0 (every noise parameter is a non-negative rate, occupation or sd).
+Protocol with_noise_value(const Protocol& protocol, const std::string& field, double value);
 
 // Name of a generated sequence: steps concatenated, then (destructive readout) the dark sign
 // of every step but the last, e.g. "AB+" (DESIGN.md section 8).

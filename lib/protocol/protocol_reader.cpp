@@ -389,21 +389,51 @@ bool valid_measurement_name(const std::string& s) {
   });
 }
 
-NoiseModel parse_noise(const Reader& r, const json& j, const std::string& path) {
+// One noise field: a number, {"mean": m, "sd": s} or {"range": [lo, hi]}. Returns the value
+// the NoiseModel keeps (the mean or the midpoint) and records any uncertainty.
+double parse_noise_value(const Reader& r, const json& j, const std::string& path,
+                         const std::string& key, std::vector<UncertainValue>& uncertain) {
+  if (j.is_number()) return r.nonnegative(r.number(j, path, key), path, key);
+  if (!j.is_object())
+    r.fail(path, key + " must be a number, {\"mean\": m, \"sd\": s} or " +
+                     "{\"range\": [lo, hi]}, got " + std::string(j.type_name()) + " " + shown(j));
+  UncertainValue u;
+  u.field = key;
+  if (j.contains("range")) {
+    r.expect_object(j, path, {"range"});
+    const std::string pr = child(path, "range");
+    const json& range = j.at("range");
+    if (!range.is_array() || range.size() != 2)
+      r.fail(pr, "range must be a pair [lo, hi] of numbers, got " + shown(range));
+    const double lo = r.nonnegative(r.number(range[0], element(pr, 0), key + " range lo"),
+                                    element(pr, 0), key + " range lo");
+    const double hi = r.nonnegative(r.number(range[1], element(pr, 1), key + " range hi"),
+                                    element(pr, 1), key + " range hi");
+    if (lo > hi)
+      r.fail(pr, key + " range lo = " + shown(lo) + " is above hi = " + shown(hi) +
+                     ", but must be <= hi");
+    u.low = lo;
+    u.high = hi;
+    u.mean = 0.5 * (lo + hi);
+  } else {
+    r.expect_object(j, path, {"mean", "sd"});
+    u.mean = r.nonnegative(r.number_field(j, "mean", path), child(path, "mean"), key + " mean");
+    u.sd = r.nonnegative(r.number_field(j, "sd", path), child(path, "sd"), key + " sd");
+  }
+  uncertain.push_back(u);
+  return u.mean;
+}
+
+NoiseModel parse_noise(const Reader& r, const json& j, const std::string& path,
+                       std::vector<UncertainValue>& uncertain) {
   r.expect_object(j, path,
                   {"heating_quanta_per_s", "damping_rate_per_s", "bath_nbar",
                    "dephasing_rate_per_s", "frequency_noise_sd_rad_per_s",
                    "force_noise_quanta_per_s"});
   NoiseModel n;
-  const auto field = [&](const char* key) {
-    return r.nonnegative(r.number_or(j, key, path, 0.0), child(path, key), key);
-  };
-  n.heating_quanta_per_s = field("heating_quanta_per_s");
-  n.damping_rate_per_s = field("damping_rate_per_s");
-  n.bath_nbar = field("bath_nbar");
-  n.dephasing_rate_per_s = field("dephasing_rate_per_s");
-  n.frequency_noise_sd_rad_per_s = field("frequency_noise_sd_rad_per_s");
-  n.force_noise_quanta_per_s = field("force_noise_quanta_per_s");
+  for (const auto& key : noise_field_names())
+    if (const json* v = Reader::optional(j, key))
+      noise_field(n, key) = parse_noise_value(r, *v, child(path, key), key, uncertain);
   return n;
 }
 
@@ -608,7 +638,8 @@ Protocol parse_protocol(const nlohmann::json& doc, const std::string& file_label
     proto.measurements.emplace(it.key(), parse_measurement(r, it.value(), path, it.key(), true));
   }
 
-  if (const json* n = Reader::optional(doc, "noise")) proto.noise = parse_noise(r, *n, "noise");
+  if (const json* n = Reader::optional(doc, "noise"))
+    proto.noise = parse_noise(r, *n, "noise", proto.uncertain_noise);
   if (const json* d = Reader::optional(doc, "detection"))
     proto.detection = parse_detection(r, *d, "detection");
 
