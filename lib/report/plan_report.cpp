@@ -122,7 +122,7 @@ std::string plan_text(const CampaignPlan& plan, const std::optional<PlanVerifica
              sci(s.seconds_per_shot), std::to_string(s.shots_rounded)});
     out += t.str();
     out += "\n  total      " + std::to_string(plan.total_shots) + " shots, " +
-           fixed(plan.lab_seconds / 3600.0, 3) + " h of lab time\n";
+           fixed(plan.lab_seconds / 3600.0, 3) + " h of lab time (" + sci(plan.lab_seconds) + " s)\n";
     out += "  power      " + fixed(plan.planned_power, 4) + " (normal approximation at the rounded shots; SE of " +
            plan.quantity + " " + sci(plan.se_model) + ")\n";
     if (verification) {
