@@ -150,7 +150,8 @@ void register_plan(CLI::App& app) {
       "Examples:\n"
       "  macroreal plan protocols/lg3_prepared_cat_conclusive.json --alpha 0.01 --power 0.9 -o shots.json\n"
       "  macroreal plan protocols/lg3_thermal.json --verify 2000 --seed 7 --power-curve curve.csv\n"
-      "  macroreal plan protocols/nsit_prepared_cat.json --test equivalence --margin 0.05 --json\n"
+      "  macroreal plan protocols/lg3_thermal.json --test equivalence --margin 0.05 --json\n"
+      "  macroreal plan protocols/nsit_prepared_cat.json --test nsit --alpha 0.01\n"
       "  macroreal plan p.json --cycle-time-s 0.02,0.001 --no-waits\n"
       "Exit codes: 0 plan made, 1 no number of shots reaches the power (the report says why),\n"
       "2 bad input.");
