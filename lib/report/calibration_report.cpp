@@ -41,7 +41,7 @@ std::vector<std::string> assumptions(const CalibrationResult& r) {
     a.push_back("Decay model: the dark state is pumped to bright after an exponentially distributed "
                 "time with the declared mean " + sig(*r.dark_lifetime_s) +
                 " s and fluoresces at the bright rate afterwards; the bright state does not decay. "
-                "The lifetime is taken as given, not fitted.");
+                "The lifetime is taken as given, not fitted, and the intervals do not include its uncertainty.");
   else
     a.push_back("No decay model: the dark state stays dark for the whole window (declare a dark "
                 "lifetime with --dark-lifetime if it is pumped to bright).");
