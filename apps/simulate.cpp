@@ -15,7 +15,7 @@
 #include "core/error.hpp"
 #include "design/campaign_simulation.hpp"
 #include "design/simulated_table_writer.hpp"
-#include "design/simulation_allocation.hpp"
+#include "design/allocation_file.hpp"
 #include "protocol/protocol_reader.hpp"
 #if __has_include("detection/calibration_file.hpp")
 #include "detection/calibration_file.hpp"
@@ -131,7 +131,12 @@ int run_simulate(const SimulateArgs& args) {
     options.shots_per_sequence = args.shots;
   }
   if (!args.allocation.empty()) {
-    options.allocation = read_shot_allocation(args.allocation, proto).shots;
+    for (const auto& [name, n] : read_allocation_file(args.allocation, proto).shots) {
+      if (n >= (1LL << 31))
+        throw InputError(args.allocation, "shots." + name,
+                         "= " + std::to_string(n) + ", but simulate takes below 2^31 shots per sequence");
+      options.allocation[name] = static_cast<long>(n);
+    }
     options.allocation_only = !args.shots_given;
   }
   options.cycle_time_s = args.cycle_time_s;
