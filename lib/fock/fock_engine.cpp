@@ -10,7 +10,6 @@
 #include "fock/displacement_matrix.hpp"
 #include "fock/fock_tabulation.hpp"
 #include "fock/serial_eigen.hpp"
-#include "phase_space/hermite_rule.hpp"
 
 namespace macroreal {
 
@@ -65,6 +64,9 @@ FockEngine::FockEngine(StatePtr state, FockEngineOptions options)
   if (options_.interaction_slices < 1)
     throw DomainError("Fock engine: interaction_slices = " +
                       std::to_string(options_.interaction_slices) + ", but must be >= 1");
+  if (options_.initial_quadrature_nodes < 3 ||
+      options_.max_quadrature_nodes < options_.initial_quadrature_nodes)
+    throw DomainError("Fock engine: quadrature node counts must satisfy 3 <= initial <= max");
   if (!(options_.rotation_tolerance > 0.0))
     throw DomainError("Fock engine: rotation_tolerance must be > 0");
   if (!(options_.state_tail > 0.0 && options_.state_tail < 1.0))
@@ -242,7 +244,7 @@ double FockEngine::evaluate_at(const MeasurementSequence& seq, std::size_t k, Pl
 
 double FockEngine::evaluate(const MeasurementSequence& seq, std::size_t k, Plan plan,
                             const OutcomeString* outcomes, int cutoff, int slices, double* edge,
-                            double* rotation_change) const {
+                            double* rotation_change, int* nodes_used) const {
   const auto rho0 = initial(cutoff);
   const double sigma = seq.noise.frequency_noise_sd_rad_per_s;
   bool rotates = false;
@@ -250,29 +252,40 @@ double FockEngine::evaluate(const MeasurementSequence& seq, std::size_t k, Plan 
     for (std::size_t j = 0; j < k; ++j)
       rotates = rotates || seq.steps[j].time_s > 0.0 || (slices > 0 && duration_of(seq.steps[j]) > 0.0);
   if (!rotates) return evaluate_at(seq, k, plan, outcomes, *rho0, slices, 0.0, edge);
-  auto quadrature = [&](int nodes) {
-    const auto& rule = detail::gauss_hermite_rule(nodes);
-    double s = 0.0;
-    for (int i = 0; i < nodes; ++i)
-      s += rule.weights[i] *
-           evaluate_at(seq, k, plan, outcomes, *rho0, slices, sigma * rule.nodes[i], edge);
-    return s;
+  // Nested trapezoidal rule in u = delta / sigma on [-kQuadratureRange, kQuadratureRange]
+  // (see the header): each halving of the step adds the odd nodes only, so the total cost is
+  // the final node count. Values are normalised by the weight sum, which makes constants exact.
+  constexpr double kQuadratureRange = 9.0;  // 2 Q(9) = 2.3e-19: the neglected Gaussian tail
+  int intervals = 2;
+  while (intervals + 1 < std::max(3, options_.initial_quadrature_nodes)) intervals *= 2;
+  double h = 2.0 * kQuadratureRange / intervals;
+  double weighted = 0.0, weights = 0.0;
+  auto add_node = [&](double u) {
+    const double w = std::exp(-0.5 * u * u);
+    weighted += w * evaluate_at(seq, k, plan, outcomes, *rho0, slices, sigma * u, edge);
+    weights += w;
   };
-  int nodes = std::max(1, options_.initial_hermite_nodes);
-  double prev = quadrature(nodes);
+  for (int i = 0; i <= intervals; ++i) add_node(-kQuadratureRange + i * h);
+  double prev = weighted / weights, last_diff = 0.0;
   while (true) {
-    nodes *= 2;
-    if (nodes > options_.max_hermite_nodes)
+    if (2 * intervals + 1 > options_.max_quadrature_nodes)
       throw UnsupportedError("Fock engine: frequency-noise averaging did not reach the tolerance " +
-                             num(options_.rotation_tolerance) + " with max_hermite_nodes = " +
-                             std::to_string(options_.max_hermite_nodes));
-    const double cur = quadrature(nodes);
+                             num(options_.rotation_tolerance) + " with max_quadrature_nodes = " +
+                             std::to_string(options_.max_quadrature_nodes) +
+                             " (last change " + num(last_diff) + "; sigma = " + num(sigma) +
+                             " rad/s)");
+    for (int i = 0; i < intervals; ++i) add_node(-kQuadratureRange + (i + 0.5) * h);
+    intervals *= 2;
+    h *= 0.5;
+    const double cur = weighted / weights;
     const double diff = std::abs(cur - prev);
     if (diff <= options_.rotation_tolerance) {
       if (rotation_change) *rotation_change = std::max(*rotation_change, diff);
+      if (nodes_used) *nodes_used = std::max(*nodes_used, intervals + 1);
       return cur;
     }
     prev = cur;
+    last_diff = diff;
   }
 }
 
@@ -310,9 +323,11 @@ FockValue FockEngine::run(const MeasurementSequence& seq, std::size_t k, Plan pl
   const int slices = any_duration ? options_.interaction_slices : 0;
   d.slices = slices;
   auto value_at = [&](int cutoff, double* edge, double* slicing) {
-    const double v1 = evaluate(seq, k, plan, outcomes, cutoff, slices, edge, &d.rotation_change);
+    const double v1 =
+        evaluate(seq, k, plan, outcomes, cutoff, slices, edge, &d.rotation_change, &d.quadrature_nodes);
     if (slices == 0) return v1;
-    const double v2 = evaluate(seq, k, plan, outcomes, cutoff, 2 * slices, edge, &d.rotation_change);
+    const double v2 = evaluate(seq, k, plan, outcomes, cutoff, 2 * slices, edge, &d.rotation_change,
+                               &d.quadrature_nodes);
     if (slicing) *slicing = std::abs(v2 - v1);
     return (4.0 * v2 - v1) / 3.0;  // Richardson: Strang splitting has only even error powers
   };
@@ -334,6 +349,8 @@ FockValue FockEngine::run(const MeasurementSequence& seq, std::size_t k, Plan pl
   out.value.error_estimate = d.truncation_change + d.slicing_change + d.rotation_change;
   out.value.slicing_change = d.slicing_change;
   out.value.slices = d.slices;
+  out.value.hermite_nodes = d.quadrature_nodes;  // trapezoidal nodes here (fock_engine.hpp)
+  out.value.rotation_dimensions = d.quadrature_nodes > 0 ? 1 : 0;
   return out;
 }
 

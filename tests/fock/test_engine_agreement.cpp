@@ -34,8 +34,8 @@ void sweep(int count, std::uint64_t seed, const testing::SweepLimits& lim, doubl
     try {
       pw = weyl.probability(p.seq, p.outcomes).value;
     } catch (const UnsupportedError&) {
-      // The frequency-noise quadrature (the same Gauss-Hermite rule in delta in both engines)
-      // needs more nodes than allowed: no reference value for this protocol.
+      // The Weyl engine's frequency-noise quadrature (Gauss-Hermite in delta) needs more
+      // nodes than allowed: no reference value for this protocol.
       ++refused;
       continue;
     }
@@ -43,8 +43,9 @@ void sweep(int count, std::uint64_t seed, const testing::SweepLimits& lim, doubl
     try {
       pf = fock.probability(p.seq, p.outcomes).value;
     } catch (const UnsupportedError&) {
-      // The Fock engine's own quadrature floor (tabulation round-off ~1e-13 per element)
-      // can stop it short of its tolerance: it refuses rather than return an unconverged value.
+      // The Fock engine's frequency-noise quadrature (nested trapezoidal rule) did not
+      // confirm its tolerance within max_quadrature_nodes: it refuses rather than return an
+      // unconverged value.
       ++refused_fock;
       continue;
     }
