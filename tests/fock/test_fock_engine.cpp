@@ -37,10 +37,10 @@ std::string temp_path(const std::string& name) {
 }  // namespace
 
 TEST_CASE("Fock engine: Markovian dephasing decays a Fock coherence as exp(-kappa t (m-n)^2/2)", "[fock]") {
-  // Derived here, no source: for d rho/dt = kappa D[a^dag a] rho,
-  //   d rho_mn/dt = kappa (m n - m^2/2 - n^2/2) rho_mn = -kappa (m - n)^2 / 2 rho_mn.
-  // (The same phase-damping law is in the textbook treatments, e.g. Walls & Milburn, Quantum
-  // Optics -- from memory, equation not checked.) For (|0> + |1>)/sqrt2,
+  // For d rho/dt = kappa D[a^dag a] rho,
+  //   d rho_mn/dt = kappa (m n - m^2/2 - n^2/2) rho_mn = -kappa (m - n)^2 / 2 rho_mn
+  // (published form: G. J. Milburn, Phys. Rev. A 44, 5401 (1991), the double-commutator
+  // equation with H = a^dag a; see test_dephasing_published.cpp). For (|0> + |1>)/sqrt2,
   //   chi_t(b) = e^{-|b|^2/2} [1 - |b|^2/2 + i Im(b) e^{-kappa t/2}]
   // (with <1|D|0> = b e^{-|b|^2/2}, <0|D|1> = -b* e^{-|b|^2/2}, <1|D|1> = (1-|b|^2) e^{-|b|^2/2},
   // Cahill & Glauber 1969), so at phase pi/2:
@@ -188,7 +188,8 @@ TEST_CASE("density matrix files: read, checked, usable by both engines", "[fock]
 }
 
 TEST_CASE("Fock engine: dephasing of a cat's interference term, Bessel-series law", "[fock]") {
-  // Derived here, no source for the combination (the ingredients are standard): dephasing
+  // Derived here, no source for the combination (the ingredients are standard; the published
+  // check value of the dephasing law is in test_dephasing_published.cpp): dephasing
   // kappa D[a^dag a] over t is a random rotation of angle variance kappa t (both multiply
   // rho_mn by exp(-kappa t (m-n)^2/2)), so chi_t(b) = E_theta chi_0(b e^{i theta}) and every
   // angular harmonic k of chi_0 is multiplied by exp(-kappa t k^2 / 2). For the cat
