@@ -232,6 +232,21 @@ long checked_power(int base, int exponent, long limit) {
 
 }  // namespace
 
+void refuse_durations(const MeasurementSequence& seq, std::size_t k) {
+  for (std::size_t j = 0; j < k && j < seq.steps.size(); ++j) {
+    const TimedMeasurement& step = seq.steps[j];
+    if (step.duration_s > 0.0) {
+      std::ostringstream os;
+      os.precision(6);
+      os << "classical reference model: measurement '" << step.label << "' has duration_s = "
+         << step.duration_s << " s; the classical models treat every measurement as "
+         << "instantaneous and do not model noise during a finite interaction, so they give no "
+         << "value here (set duration_s to 0 to compare with them)";
+      throw UnsupportedError(os.str());
+    }
+  }
+}
+
 ClassicalModel::ClassicalModel(StatePtr state, ClassicalKind kind, WeylEngineOptions options)
     : state_(std::move(state)), kind_(kind), options_(options) {
   if (!state_) throw DomainError("classical reference model: state is null");
@@ -249,6 +264,7 @@ EngineValue classical_expectation(const State& state, ClassicalKind kind,
                                   const WeylEngineOptions& opt, const MeasurementSequence& seq,
                                   const std::vector<StepFactor>& factors) {
   const int k = static_cast<int>(factors.size());
+  refuse_durations(seq, static_cast<std::size_t>(k));
   EngineValue out;
   if (k == 0) {
     out.value = 1.0;

@@ -10,7 +10,8 @@
 //                 (+beta/2 for the one-sided split, none for the symmetric one).
 // Computed independently of the Weyl algebra, by Gaussian integrals over the joint
 // distribution of the points at the measurement times. Refuses (UnsupportedError) states
-// whose Wigner function is not known to be non-negative, and non-Gaussian states.
+// whose Wigner function is not known to be non-negative, and non-Gaussian states, and
+// sequences with finite-duration measurements (duration_s > 0; see refuse_durations).
 #pragma once
 
 #include <string>
@@ -43,6 +44,13 @@ class ClassicalModel {
   ClassicalKind kind_;
   WeylEngineOptions options_;
 };
+
+// Throws UnsupportedError naming `duration_s` and the measurement's label when one of the
+// first k steps of `seq` has a finite interaction duration: the classical models (and the
+// closed-form NSIT decomposition) treat measurements as instantaneous, and a finite
+// interaction with noise acting during it is not modelled, so they refuse rather than give a
+// value for a different experiment.
+void refuse_durations(const MeasurementSequence& seq, std::size_t k);
 
 // True when the classical models can be built for this state.
 bool classical_model_applies(const State& state, std::string* why_not = nullptr);

@@ -2,6 +2,7 @@
 #include "phase_space/temporal_tests.hpp"
 
 #include <cmath>
+#include <sstream>
 
 #include "core/error.hpp"
 
@@ -30,6 +31,15 @@ SignallingDecomposition nsit_decomposition(const State& state, const Measurement
         "NSIT decomposition: not available with dephasing or frequency noise (rotations)");
   const auto two = subsequence(all, {a, b});  // checks a < b and the range
   two.validate();
+  for (const auto& step : two.steps)
+    if (step.duration_s > 0.0) {
+      std::ostringstream os;
+      os.precision(6);
+      os << "NSIT decomposition: measurement '" << step.label << "' has duration_s = "
+         << step.duration_s << " s; the closed form assumes instantaneous measurements and "
+         << "does not model noise during a finite interaction";
+      throw UnsupportedError(os.str());
+    }
   const auto& ma = two.steps[0].measurement;
   const auto& mb = two.steps[1].measurement;
   const auto to_a = GaussianChannel::over(all.noise, two.steps[0].time_s);

@@ -92,8 +92,9 @@ struct SignallingDecomposition {
   double kick_phase_rad = 0.0;      // -Theta for the one-sided split of A, 0 for symmetric
   cplx f = 1.0;                     // the factor f above
 };
-// Throws UnsupportedError when the noise rotates (dephasing or frequency noise), DomainError
-// for bad indices.
+// Throws UnsupportedError when the noise rotates (dephasing or frequency noise) or when A or B
+// has a finite interaction duration (duration_s > 0, naming the field), DomainError for bad
+// indices.
 SignallingDecomposition nsit_decomposition(const State& state, const MeasurementSequence& all,
                                            int a, int b);
 

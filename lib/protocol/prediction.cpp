@@ -113,18 +113,27 @@ ClassicalVerdict classical_verdict(bool violation, const std::optional<double>& 
   return *k_cl >= K - tol ? ClassicalVerdict::reproduces : ClassicalVerdict::beaten;
 }
 
-std::string lg_verdict(const LeggettGargPrediction& lg) {
+// sequence_refused: the classical models exist for the state but refused this sequence (e.g. a
+// finite-duration measurement), so the prediction cannot say whether they explain K.
+std::string lg_verdict(const LeggettGargPrediction& lg, bool sequence_refused) {
   const std::string k = "K = " + fixed(lg.K);
   const std::string b = fixed(lg.bound, 0);
   if (!lg.violation) {
     return k + " does not exceed the macrorealist bound " + b + ": no violation is predicted.";
   }
   const std::string head = k + " exceeds the macrorealist bound " + b;
-  if (!lg.K_classical) {
+  if (!lg.K_classical && !sequence_refused) {
     return head +
            "; the classical phase-space models cannot be built for this input (its Wigner "
            "function is not non-negative), so no classical model of this kind explains it; "
            "the test still assumes non-invasive measurability, which NSIT controls must bound.";
+  }
+  if (!lg.K_classical) {
+    return head + "; the classical phase-space models give no value here (" +
+           lg.classical_unavailable +
+           "), so this prediction does not say whether a classical model of this kind explains "
+           "it; the test still assumes non-invasive measurability, which NSIT controls must "
+           "bound.";
   }
   const std::string model = to_string(lg.model_in_use);
   const double kc = lg.model_in_use == ClassicalKind::kicked ? *lg.K_classical_kicked
@@ -257,6 +266,7 @@ PredictionResult predict(const Protocol& proto, const PredictOptions& options) {
       lg.bound = n - 2;
       const MeasurementSequence all = proto.sequence_of(spec.order);
       std::map<std::pair<int, int>, double> c, c_cl, c_kick;
+      std::string lg_classical_reason;  // set when a classical model refuses this test
       // Pairs in reading order: neighbours, then first-last, then the others (i < j).
       std::vector<std::pair<int, int>> pairs;
       for (int i = 0; i + 1 < n; ++i) pairs.emplace_back(i, i + 1);
@@ -275,11 +285,16 @@ PredictionResult predict(const Protocol& proto, const PredictOptions& options) {
           lg.engine_correlator_deviation =
               std::max(lg.engine_correlator_deviation, std::abs(direct - pc.quantum));
           c[{i, j}] = pc.quantum;
-          if (non_invasive) {
-            pc.classical = non_invasive->correlator_value(subsequence(all, {i, j}));
-            pc.classical_kicked = kicked->correlator_value(subsequence(all, {i, j}));
-            c_cl[{i, j}] = *pc.classical;
-            c_kick[{i, j}] = *pc.classical_kicked;
+          if (non_invasive && lg_classical_reason.empty()) {
+            try {
+              pc.classical = non_invasive->correlator_value(subsequence(all, {i, j}));
+              pc.classical_kicked = kicked->correlator_value(subsequence(all, {i, j}));
+              c_cl[{i, j}] = *pc.classical;
+              c_kick[{i, j}] = *pc.classical_kicked;
+            } catch (const UnsupportedError& e) {
+              // e.g. a finite-duration measurement: no classical value rather than a wrong one
+              lg_classical_reason = e.what();
+            }
           }
           lg.correlators.push_back(std::move(pc));
         }
@@ -296,11 +311,13 @@ PredictionResult predict(const Protocol& proto, const PredictOptions& options) {
           lg.family.push_back(1.0 + sk[0] * c[{0, 1}] + sk[1] * c[{1, 2}] +
                               sk[0] * sk[1] * c[{0, 2}]);
       }
-      if (non_invasive) {
+      if (non_invasive && lg_classical_reason.empty()) {
         lg.K_classical = k_of(c_cl);
         lg.K_classical_kicked = k_of(c_kick);
       } else {
-        lg.classical_unavailable = res.classical_unavailable;
+        for (auto& pc : lg.correlators) pc.classical = pc.classical_kicked = std::nullopt;
+        lg.classical_unavailable =
+            lg_classical_reason.empty() ? res.classical_unavailable : lg_classical_reason;
       }
       lg.split_in_use = split_in_use(proto, spec.order);
       lg.model_in_use =
@@ -312,7 +329,7 @@ PredictionResult predict(const Protocol& proto, const PredictOptions& options) {
                                             ? lg.versus_kicked
                                             : lg.versus_non_invasive;
       lg.explained_by_classical_model = relevant == ClassicalVerdict::reproduces;
-      lg.verdict = lg_verdict(lg);
+      lg.verdict = lg_verdict(lg, !lg_classical_reason.empty());
       tp.lg = std::move(lg);
     } else {
       NsitPrediction ns;
@@ -325,8 +342,13 @@ PredictionResult predict(const Protocol& proto, const PredictOptions& options) {
       ns.S = ns.p_to_alone - ns.p_to_after;
       const MeasurementSequence pair = proto.sequence_of({spec.from, spec.to});
       if (non_invasive) {
-        ns.S_classical = nsit_signalling(*non_invasive, pair, 0, 1);
-        ns.S_classical_kicked = nsit_signalling(*kicked, pair, 0, 1);
+        try {
+          ns.S_classical = nsit_signalling(*non_invasive, pair, 0, 1);
+          ns.S_classical_kicked = nsit_signalling(*kicked, pair, 0, 1);
+        } catch (const UnsupportedError& e) {
+          ns.S_classical = ns.S_classical_kicked = std::nullopt;
+          ns.classical_unavailable = e.what();
+        }
       } else {
         ns.classical_unavailable = res.classical_unavailable;
       }
@@ -361,10 +383,14 @@ PredictionResult predict(const Protocol& proto, const PredictOptions& options) {
     if (!t.lg || !t.lg->violation) continue;
     const auto& lg = *t.lg;
     std::string s = t.spec.label() + ": the violation ";
-    if (!lg.K_classical) {
+    if (!lg.K_classical && !res.classical_model_applies) {
       s += "is not reproduced by a classical phase-space model, because none can be built "
            "for this input (Wigner function not non-negative); it is conclusive only as far "
            "as invasiveness is bounded independently, e.g. by NSIT controls.";
+    } else if (!lg.K_classical) {
+      s += "is not compared with a classical phase-space model, because none gives a value "
+           "here (" + lg.classical_unavailable + "); whether back-action on a classical point "
+           "explains it is not established by this prediction.";
     } else {
       s += std::string(lg.versus_non_invasive == ClassicalVerdict::beaten ? "beats" : "does not beat") +
            " the non-invasive classical model (K_classical = " + fixed(*lg.K_classical) +

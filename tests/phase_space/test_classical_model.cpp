@@ -314,3 +314,35 @@ TEST_CASE("ClassicalModel: probabilities are consistent with correlators and las
     }
   }
 }
+
+TEST_CASE("ClassicalModel and NSIT decomposition refuse finite-duration measurements",
+          "[phase_space]") {
+  // The classical models and the closed-form decomposition treat measurements as instantaneous
+  // (DESIGN.md section 2); a finite interaction with noise acting during it (duration_s,
+  // issue 4) is not modelled, so they must refuse, naming the field, rather than return the
+  // value of the instantaneous experiment. Behaviour check, no outside value needed.
+  MeasurementSequence seq;
+  seq.noise.heating_quanta_per_s = 50.0;
+  seq.steps.push_back({"A", {cplx(1.5, 0.0), 0.0, Split::one_sided, 1.0}, 0.0, 0.0});
+  seq.steps.push_back({"B", {cplx(0.3, 1.2), 0.2, Split::symmetric, 1.0}, 1e-4, 2e-5});
+  const ClassicalModel kicked(make_thermal(0.4), ClassicalKind::kicked);
+  const ClassicalModel plain(make_thermal(0.4), ClassicalKind::non_invasive);
+  CHECK_THROWS_AS(kicked.correlator(seq), UnsupportedError);
+  CHECK_THROWS_WITH(plain.correlator(seq), Catch::Matchers::Contains("duration_s") &&
+                                               Catch::Matchers::Contains("'B'"));
+  CHECK_THROWS_WITH(kicked.probability(seq, {+1, -1}), Catch::Matchers::Contains("duration_s"));
+  CHECK_THROWS_WITH(plain.last_average(seq), Catch::Matchers::Contains("duration_s"));
+  CHECK_THROWS_WITH(nsit_decomposition(*make_thermal(0.4), seq, 0, 1),
+                    Catch::Matchers::Contains("duration_s") && Catch::Matchers::Contains("'B'"));
+  // Only the measurements actually made count: the first step alone is instantaneous.
+  const double p1 = kicked.probability_value(seq, {+1});
+  MeasurementSequence instant = seq;
+  instant.steps[1].duration_s = 0.0;
+  CHECK(p1 == kicked.probability_value(instant, {+1}));
+  CHECK_NOTHROW(plain.correlator(instant));
+  CHECK_NOTHROW(nsit_decomposition(*make_thermal(0.4), instant, 0, 1));
+  // A duration on the first measurement is refused too.
+  MeasurementSequence first = instant;
+  first.steps[0].duration_s = 1e-5;
+  CHECK_THROWS_WITH(kicked.probability(first, {+1}), Catch::Matchers::Contains("'A'"));
+}
