@@ -173,7 +173,8 @@ std::string prediction_text(const PredictionResult& r) {
                                                                : " (truncated Fock basis), ");
   eng += r.engine.max_hermite_nodes == 0
              ? std::string("no rotation quadrature")
-             : "Gauss-Hermite quadrature, " + std::to_string(r.engine.max_hermite_nodes) +
+             : std::string(r.engine.name == "weyl" ? "Gauss-Hermite" : "trapezoidal") +
+                   " rotation quadrature, " + std::to_string(r.engine.max_hermite_nodes) +
                    " nodes x " + std::to_string(r.engine.max_rotation_dimensions) +
                    " dimensions, error estimate <= " + sci(r.engine.max_error_estimate);
   eng += ", " + std::to_string(r.engine.engine_calls) + " engine calls";
