@@ -28,7 +28,7 @@ struct AnalyseArgs {
   bool json = false;
   double level = 0.95;
   std::uint64_t seed = kDefaultAnalysisSeed;
-  long bootstrap = 9999;
+  long bootstrap = 10000;
   std::string on_bad_row = "error";
   std::optional<double> threshold;
   std::optional<double> margin;
@@ -89,7 +89,7 @@ void register_analyse(CLI::App& app) {
       ->check(CLI::Range(0.5, 0.999999));
   cmd->add_option("--seed", args->seed, "seed of every resampling step (default 20261202)");
   cmd->add_option("--bootstrap", args->bootstrap,
-                  "bootstrap replicates B for intervals and resampling tests (default 9999)")
+                  "bootstrap replicates B for intervals and resampling tests (default 10000)")
       ->check(CLI::Range(100L, 10000000L));
   cmd->add_option("--on-bad-row", args->on_bad_row,
                   "error: stop at the first bad row (default); skip: leave it out and count the reason")

@@ -156,6 +156,7 @@ nlohmann::ordered_json analysis_json(const AnalysisResult& r) {
     } else {
       t["invasiveness"] = nullptr;
       t["invasiveness_unavailable"] = a.invasiveness_unavailable;
+      t["invasiveness_assumption"] = kInvasivenessAssumption;  // what a bound would assume
     }
     if (a.model) {
       const auto& m = *a.model;
@@ -342,6 +343,7 @@ std::string analysis_text(const AnalysisResult& r) {
       out += "  " + a.label + ": NSIT bound on K " + num(b.bound) + " (upper limit " + num(b.bound_upper) +
              ", pairs " + join(b.pairs, ", ") + "); K lower limit " + num(b.k_lower) + " -> " +
              (b.exceeds ? "exceeds" : "does not exceed") + "\n";
+      out += wrap("assumes " + b.assumption, "    ", "    ");
     } else {
       out += wrap(a.label + ": no invasiveness bound: " + a.invasiveness_unavailable, "  ", "    ");
     }

@@ -259,6 +259,11 @@ AnalysisResult analyse_campaign(const Protocol& protocol, const CampaignCounts& 
       const BinomialArms arms = nsit_binomial_arms(c, spec.from, spec.to);
       return barnard_exact_test(arms.x1, arms.n1, arms.x2, arms.n2);
     }));
+    a.tests.push_back(guarded("boschloo-exact", [&] {
+      const BinomialArms arms = nsit_binomial_arms(c, spec.from, spec.to);
+      return boschloo_exact_test(arms.x1, arms.n1, arms.x2, arms.n2);
+    }));
+    if (sf) a.tests.push_back(guarded("hoeffding", [&] { return nsit_hoeffding_test(counts, *sf); }));
     if (spec.margin) {
       a.margin = spec.margin;
       a.margin_source = "protocol";
@@ -311,7 +316,8 @@ AnalysisResult analyse_campaign(const Protocol& protocol, const CampaignCounts& 
     r.nsit.push_back(std::move(a));
   }
 
-  std::vector<ScanSetting> scan;
+  JointScan scan;
+  scan.counts = counts;
   for (std::size_t t = 0; t < protocol.tests.size(); ++t) {
     const TestSpec& spec = protocol.tests[t];
     if (spec.kind != TestSpec::Kind::leggett_garg) continue;
@@ -357,7 +363,10 @@ AnalysisResult analyse_campaign(const Protocol& protocol, const CampaignCounts& 
         return lg_parametric_bootstrap_test(counts, *kf, a.bound, po);
       }));
     }
-    if (kf) scan.push_back({counts, *kf, a.bound});
+    if (kf) {
+      scan.statistics.push_back(*kf);
+      scan.bounds.push_back(a.bound);
+    }
 
     if (controls.empty()) {
       a.invasiveness_unavailable = "the protocol has no NSIT control with data; the bound needs an NSIT test for every pair (k, k+1) and (1, n) of the order";
@@ -464,7 +473,7 @@ AnalysisResult analyse_campaign(const Protocol& protocol, const CampaignCounts& 
         "one p-value per test of the protocol: for LG the one-sided parametric-bootstrap p "
         "(H0: K <= bound; the z-test p where the bootstrap could not run), for NSIT the two-sided "
         "score p (H0: S = 0); tests without a computable p-value are left out of the family";
-    if (scan.size() >= 2) {
+    if (scan.statistics.size() >= 2) {
       ParametricBootstrapOptions mo;
       mo.replicates = options.replicates;
       mo.seed = derive_seed(options.seed, 1000);
@@ -474,10 +483,9 @@ AnalysisResult analyse_campaign(const Protocol& protocol, const CampaignCounts& 
         for (const auto& a : r.leggett_garg)
           if (std::isfinite(a.K_linear)) r.multiplicity.max_statistic_labels.push_back(a.label);
         r.multiplicity.max_statistic_note =
-            "the LG tests share sequences but are simulated as independent settings; for "
-            "positively correlated, near-Gaussian statistics this makes the maximum stochastically "
-            "larger (Slepian, Bell Syst. Tech. J. 41:463 (1962)), so the adjusted p-values are "
-            "conservative";
+            "one stratified resample of the whole campaign per replicate evaluates every LG "
+            "statistic (centred at its estimate), so tests that share sequences keep their "
+            "dependence; single-step maxT (Westfall & Young 1993)";
       } catch (const DomainError& e) {
         r.multiplicity.max_statistic_note = std::string("not computable: ") + e.what();
       }
@@ -499,13 +507,13 @@ AnalysisResult analyse_campaign(const Protocol& protocol, const CampaignCounts& 
       any_lg = true;
       if (a.invasiveness)
         s += a.label + ": the NSIT controls bound the violation that disturbance alone can produce "
-             "(K <= " + fmt(a.invasiveness->bound_upper) + " at the upper confidence limits, under the "
-             "assumption that disturbance shifts the later mean in the same direction on both "
-             "branches); the lower limit of K " + (a.invasiveness->exceeds ? "exceeds" : "does not exceed") +
-             " it. ";
+             "(K <= " + fmt(a.invasiveness->bound_upper) + " at the upper confidence limits); the lower "
+             "limit of K " + (a.invasiveness->exceeds ? "exceeds" : "does not exceed") + " it. ";
       else
         s += a.label + ": no bound on invasiveness (" + a.invasiveness_unavailable + "). ";
     }
+    if (any_lg)
+      s += std::string("Every NSIT bound on invasiveness assumes ") + kInvasivenessAssumption + ". ";
     if (!any_lg) s += "The protocol has no LG test. ";
     r.cautions.push_back(s);
   }

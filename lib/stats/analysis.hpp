@@ -37,7 +37,7 @@ struct AnalysisOptions {
   double level = 0.95;              // two-sided confidence level of intervals; tests use
                                     // alpha = 1 - level for their verdicts
   std::uint64_t seed = kDefaultAnalysisSeed;
-  long replicates = 9999;           // B of the bootstrap intervals and of every resampling test
+  long replicates = 10000;          // B of the bootstrap intervals and of every resampling test
   std::optional<double> margin;     // NSIT TOST margin for tests without their own "margin"
   bool model = true;                // compare with the protocol's model when it has a state
   int threads = 0;                  // 0: OpenMP default; results do not depend on it

@@ -51,10 +51,7 @@ InvasivenessBound invasiveness_bound(const std::vector<std::string>& order, doub
   }
   r.k_lower = k_estimate - z_upper(alpha / 2.0) * k_std_error;
   r.exceeds = r.k_lower > r.bound_upper;
-  r.assumption =
-      "measurement disturbance shifts each later mean in the same direction on both outcome "
-      "branches of the earlier measurement (sign-uniform disturbance); without it NSIT controls "
-      "cannot bound invasiveness";
+  r.assumption = kInvasivenessAssumption;
   return r;
 }
 

@@ -40,6 +40,15 @@ struct NsitControl {
   double std_error = 0.0; // its (delta-method) standard error
 };
 
+// The assumptions the bound rests on, in words (reports print them beside every bound and
+// in their cautions, also when no bound could be computed).
+inline constexpr const char* kInvasivenessAssumption =
+    "sign-uniform disturbance: on both outcome branches of an earlier measurement, its "
+    "disturbance shifts the mean of each later measurement in the same direction "
+    "(D_ij(+) D_ij(-) >= 0); and stationary runs, so that runs of the later measurement alone "
+    "give its undisturbed distribution. Without sign-uniformity the NSIT controls cannot bound "
+    "invasiveness at all (S = 0 is compatible with a disturbance that moves C_ij by any amount)";
+
 struct InvasivenessBound {
   std::vector<std::string> pairs;     // "A->B", ... in the order used
   std::vector<double> s_upper;        // upper limit of |S| per pair

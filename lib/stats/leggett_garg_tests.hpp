@@ -54,7 +54,7 @@ TestResult lg_empirical_bernstein_test(const CellCounts& counts, const LinearFun
                                        double bound);
 
 struct ParametricBootstrapOptions {
-  long replicates = 9999;
+  long replicates = 10000;
   std::uint64_t seed = 0x6d726c67ULL;
   double pseudo_count = 0.5;   // smoothing of the constrained fit (linear_functional.hpp)
   int threads = 0;             // 0: OpenMP default; the result does not depend on it

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <exception>
+#include <limits>
 #include <numeric>
 #include <omp.h>
 
@@ -48,23 +49,55 @@ std::vector<double> benjamini_hochberg_adjust(const std::vector<double>& p) {
   return out;
 }
 
+JointScan stack_settings(const std::vector<ScanSetting>& settings) {
+  JointScan j;
+  for (const auto& s : settings) {
+    if (s.statistic.coef.size() != s.counts.size())
+      throw DomainError("max-statistic: a setting's statistic does not match its counts");
+    j.counts.insert(j.counts.end(), s.counts.begin(), s.counts.end());
+  }
+  std::size_t offset = 0;
+  for (const auto& s : settings) {
+    LinearFunctional f;
+    f.name = s.statistic.name;
+    for (std::size_t q = 0; q < j.counts.size(); ++q)
+      f.coef.push_back(q >= offset && q < offset + s.counts.size() ? s.statistic.coef[q - offset]
+                                                                    : std::vector<double>(j.counts[q].size(), 0.0));
+    offset += s.counts.size();
+    j.statistics.push_back(std::move(f));
+    j.bounds.push_back(s.bound);
+  }
+  return j;
+}
+
 MaxStatisticResult max_statistic_calibration(const std::vector<ScanSetting>& settings,
                                              const ParametricBootstrapOptions& options) {
   if (settings.empty()) throw DomainError("max-statistic calibration: no settings");
+  return max_statistic_calibration(stack_settings(settings), options);
+}
+
+MaxStatisticResult max_statistic_calibration(const JointScan& scan,
+                                             const ParametricBootstrapOptions& options) {
+  if (scan.statistics.empty()) throw DomainError("max-statistic calibration: no statistics");
+  if (scan.bounds.size() != scan.statistics.size())
+    throw DomainError("max-statistic calibration: one bound per statistic is needed");
   if (options.replicates < 1)
     throw DomainError("max-statistic replicates = " + std::to_string(options.replicates) +
                       ", but must be >= 1");
-  const std::size_t K = settings.size();
+  const std::size_t K = scan.statistics.size();
   MaxStatisticResult r;
   r.replicates = options.replicates;
   r.seed = options.seed;
-  std::vector<CellCounts> null_p(K);
+  std::vector<double> centre(K);
   for (std::size_t k = 0; k < K; ++k) {
-    const auto& s = settings[k];
-    const double est = s.statistic.estimate(s.counts);
-    if (!std::isfinite(est)) throw DomainError("max-statistic: setting " + std::to_string(k) + " has a sequence with no shots");
-    r.statistic.push_back((est - s.bound) / s.statistic.smoothed_se(s.counts));
-    null_p[k] = constrained_fit(s.counts, s.statistic, s.bound, options.pseudo_count).probabilities;
+    const auto& f = scan.statistics[k];
+    if (f.coef.size() != scan.counts.size())
+      throw DomainError("max-statistic: statistic " + std::to_string(k) + " does not match the campaign");
+    const double est = f.estimate(scan.counts);
+    if (!std::isfinite(est))
+      throw DomainError("max-statistic: statistic " + std::to_string(k) + " has a sequence with no shots");
+    centre[k] = est;
+    r.statistic.push_back((est - scan.bounds[k]) / f.smoothed_se(scan.counts));
   }
   const long B = options.replicates;
   std::vector<double> maxima(static_cast<std::size_t>(B));
@@ -74,18 +107,17 @@ MaxStatisticResult max_statistic_calibration(const std::vector<ScanSetting>& set
   std::exception_ptr failure;
 #pragma omp parallel num_threads(threads)
   {
-    std::vector<CellCounts> draw(K);
-    for (std::size_t k = 0; k < K; ++k) draw[k] = settings[k].counts;
+    CellCounts draw = scan.counts;
 #pragma omp for schedule(static)
     for (long blk = 0; blk < blocks; ++blk) {
       try {
         RandomEngine g(derive_seed(options.seed, static_cast<std::uint64_t>(blk)));
         for (long b = blk * kBlock; b < std::min(B, (blk + 1) * kBlock); ++b) {
+          resample_counts(g, scan.counts, draw);  // one resample of the whole campaign
           double mx = -std::numeric_limits<double>::infinity();
           for (std::size_t k = 0; k < K; ++k) {
-            const auto& s = settings[k];
-            simulate_counts(g, null_p[k], s.counts, draw[k]);
-            mx = std::max(mx, (s.statistic.estimate(draw[k]) - s.bound) / s.statistic.smoothed_se(draw[k]));
+            const auto& f = scan.statistics[k];
+            mx = std::max(mx, (f.estimate(draw) - centre[k]) / f.smoothed_se(draw));
           }
           maxima[static_cast<std::size_t>(b)] = mx;
         }

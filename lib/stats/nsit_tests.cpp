@@ -26,45 +26,11 @@ double null_se(const CellCounts& counts, const LinearFunctional& f, double targe
   return std::sqrt(f.variance_at(fit.probabilities, counts));
 }
 
-}  // namespace
-
-TestResult nsit_score_test(const CellCounts& counts, const LinearFunctional& s) {
-  TestResult r;
-  r.method = "score";
-  const double est = s.estimate(counts);
-  if (!std::isfinite(est)) throw DomainError("score test: a sequence of " + s.name + " has no shots");
-  const double se0 = null_se(counts, s, 0.0);
-  if (!(se0 > 0.0)) {
-    r.statistic = 0.0;
-    r.p_value = 1.0;
-    r.note = "null variance is 0 (every shot in one cell)";
-  } else {
-    r.statistic = est / se0;
-    r.p_value = 2.0 * upper_tail(std::abs(r.statistic));
-  }
-  return with_sigma(r);
-}
-
-TestResult barnard_exact_test(long x1, long n1, long x2, long n2) {
-  if (n1 < 1 || n2 < 1 || x1 < 0 || x2 < 0 || x1 > n1 || x2 > n2)
-    throw DomainError("Barnard test: counts (" + std::to_string(x1) + "/" + std::to_string(n1) +
-                      ", " + std::to_string(x2) + "/" + std::to_string(n2) +
-                      ") must satisfy 0 <= x <= n, n >= 1");
-  if (static_cast<double>(n1 + 1) * static_cast<double>(n2 + 1) > 4e6)
-    throw UnsupportedError("Barnard exact test: " + std::to_string(n1) + " x " + std::to_string(n2) +
-                           " shots is too large for the exact enumeration; use the score test");
-  auto wald = [&](long a, long b) {
-    const double p1 = static_cast<double>(a) / n1, p2 = static_cast<double>(b) / n2;
-    if (p1 == p2) return 0.0;
-    const double p = static_cast<double>(a + b) / (n1 + n2);
-    return (p1 - p2) / std::sqrt(p * (1.0 - p) * (1.0 / n1 + 1.0 / n2));
-  };
-  const double w_obs = std::abs(wald(x1, x2));
-  // The rejection region, as (x1, x2) index pairs flattened per x1.
-  std::vector<std::vector<long>> region(static_cast<std::size_t>(n1 + 1));
-  for (long a = 0; a <= n1; ++a)
-    for (long b = 0; b <= n2; ++b)
-      if (std::abs(wald(a, b)) >= w_obs * (1.0 - 1e-12)) region[static_cast<std::size_t>(a)].push_back(b);
+// max over pi in [0, 1] of P_pi((X1, X2) in region) for X1 ~ Bin(n1, pi), X2 ~ Bin(n2, pi)
+// independent; region[a] lists the x2 values b with (a, b) in the region. A grid of 400
+// points plus golden-section refinement around the three best (scipy.stats.barnard_exact
+// and boschloo_exact maximise the same function with shgo).
+double max_null_probability(const std::vector<std::vector<long>>& region, long n1, long n2) {
   auto log_comb = [](long n) {
     std::vector<double> lc(static_cast<std::size_t>(n + 1));
     for (long k = 0; k <= n; ++k)
@@ -116,10 +82,134 @@ TestResult barnard_exact_test(long x1, long n1, long x2, long n2) {
     }
     best = std::max({best, fc, fd});
   }
+  return best;
+}
+
+}  // namespace
+
+TestResult nsit_score_test(const CellCounts& counts, const LinearFunctional& s) {
+  TestResult r;
+  r.method = "score";
+  const double est = s.estimate(counts);
+  if (!std::isfinite(est)) throw DomainError("score test: a sequence of " + s.name + " has no shots");
+  const double se0 = null_se(counts, s, 0.0);
+  if (!(se0 > 0.0)) {
+    r.statistic = 0.0;
+    r.p_value = 1.0;
+    r.note = "null variance is 0 (every shot in one cell)";
+  } else {
+    r.statistic = est / se0;
+    r.p_value = 2.0 * upper_tail(std::abs(r.statistic));
+  }
+  return with_sigma(r);
+}
+
+TestResult barnard_exact_test(long x1, long n1, long x2, long n2) {
+  if (n1 < 1 || n2 < 1 || x1 < 0 || x2 < 0 || x1 > n1 || x2 > n2)
+    throw DomainError("Barnard test: counts (" + std::to_string(x1) + "/" + std::to_string(n1) +
+                      ", " + std::to_string(x2) + "/" + std::to_string(n2) +
+                      ") must satisfy 0 <= x <= n, n >= 1");
+  if (static_cast<double>(n1 + 1) * static_cast<double>(n2 + 1) > 4e6)
+    throw UnsupportedError("Barnard exact test: " + std::to_string(n1) + " x " + std::to_string(n2) +
+                           " shots is too large for the exact enumeration; use the score test");
+  auto wald = [&](long a, long b) {
+    const double p1 = static_cast<double>(a) / n1, p2 = static_cast<double>(b) / n2;
+    if (p1 == p2) return 0.0;
+    const double p = static_cast<double>(a + b) / (n1 + n2);
+    return (p1 - p2) / std::sqrt(p * (1.0 - p) * (1.0 / n1 + 1.0 / n2));
+  };
+  const double w_obs = std::abs(wald(x1, x2));
+  // The rejection region, as (x1, x2) index pairs flattened per x1.
+  std::vector<std::vector<long>> region(static_cast<std::size_t>(n1 + 1));
+  for (long a = 0; a <= n1; ++a)
+    for (long b = 0; b <= n2; ++b)
+      if (std::abs(wald(a, b)) >= w_obs * (1.0 - 1e-12)) region[static_cast<std::size_t>(a)].push_back(b);
+  const double best = max_null_probability(region, n1, n2);
   TestResult r;
   r.method = "barnard-exact";
   r.statistic = wald(x1, x2);
   r.p_value = best;
+  return with_sigma(r);
+}
+
+TestResult boschloo_exact_test(long x1, long n1, long x2, long n2) {
+  if (n1 < 1 || n2 < 1 || x1 < 0 || x2 < 0 || x1 > n1 || x2 > n2)
+    throw DomainError("Boschloo test: counts (" + std::to_string(x1) + "/" + std::to_string(n1) +
+                      ", " + std::to_string(x2) + "/" + std::to_string(n2) +
+                      ") must satisfy 0 <= x <= n, n >= 1");
+  if (static_cast<double>(n1 + 1) * static_cast<double>(n2 + 1) > 4e6)
+    throw UnsupportedError("Boschloo exact test: " + std::to_string(n1) + " x " + std::to_string(n2) +
+                           " shots is too large for the exact enumeration; use the score test");
+  // Fisher's one-sided p-values of every table given its margin s = a + b: the hypergeometric
+  // tails P(X1 <= a | s) ("less") and P(X1 >= a | s) ("greater"). The pmf over a comes from
+  // the ratio recurrence pmf(a + 1) / pmf(a) = (n1 - a)(s - a) / ((a + 1)(n2 - s + a + 1)),
+  // normalised per s; tails are summed from their own end.
+  const std::size_t w = static_cast<std::size_t>(n2 + 1);
+  std::vector<double> less(static_cast<std::size_t>(n1 + 1) * w), greater(less.size());
+  std::vector<double> pmf;
+  for (long sm = 0; sm <= n1 + n2; ++sm) {
+    const long lo = std::max(0L, sm - n2), hi = std::min(n1, sm);
+    pmf.assign(static_cast<std::size_t>(hi - lo + 1), 0.0);
+    double v = 1.0, total = 0.0;
+    for (long a = lo; a <= hi; ++a) {
+      pmf[static_cast<std::size_t>(a - lo)] = v;
+      total += v;
+      if (a < hi)
+        v *= static_cast<double>(n1 - a) * static_cast<double>(sm - a) /
+             (static_cast<double>(a + 1) * static_cast<double>(n2 - sm + a + 1));
+      if (v > 1e250) {  // rescale to stay finite
+        for (auto& q : pmf) q *= 1e-250;
+        total *= 1e-250;
+        v *= 1e-250;
+      }
+    }
+    for (auto& q : pmf) q /= total;
+    double run = 0.0;
+    for (long a = lo; a <= hi; ++a) {
+      run += pmf[static_cast<std::size_t>(a - lo)];
+      less[static_cast<std::size_t>(a) * w + static_cast<std::size_t>(sm - a)] = std::min(1.0, run);
+    }
+    run = 0.0;
+    for (long a = hi; a >= lo; --a) {
+      run += pmf[static_cast<std::size_t>(a - lo)];
+      greater[static_cast<std::size_t>(a) * w + static_cast<std::size_t>(sm - a)] = std::min(1.0, run);
+    }
+  }
+  // One-sided Boschloo p-value: the largest null probability of the tables whose Fisher
+  // p-value is at most the observed one (ties within 1e-12 relative count as extreme).
+  auto one_sided = [&](const std::vector<double>& fisher, double& observed) {
+    observed = fisher[static_cast<std::size_t>(x1) * w + static_cast<std::size_t>(x2)];
+    std::vector<std::vector<long>> region(static_cast<std::size_t>(n1 + 1));
+    for (long a = 0; a <= n1; ++a)
+      for (long b = 0; b <= n2; ++b)
+        if (fisher[static_cast<std::size_t>(a) * w + static_cast<std::size_t>(b)] <= observed * (1.0 + 1e-12))
+          region[static_cast<std::size_t>(a)].push_back(b);
+    return max_null_probability(region, n1, n2);
+  };
+  double f_less = 0.0, f_greater = 0.0;
+  const double p_less = one_sided(less, f_less), p_greater = one_sided(greater, f_greater);
+  TestResult r;
+  r.method = "boschloo-exact";
+  // As scipy.stats.boschloo_exact(alternative="two-sided"): twice the smaller one-sided
+  // p-value, and the Fisher p-value of that side as the statistic.
+  r.statistic = p_less < p_greater ? f_less : f_greater;
+  r.p_value = std::min(1.0, 2.0 * std::min(p_less, p_greater));
+  r.note = "two-sided: twice the smaller one-sided p-value";
+  return with_sigma(r);
+}
+
+TestResult nsit_hoeffding_test(const CellCounts& counts, const LinearFunctional& s) {
+  const TestResult up = lg_hoeffding_test(counts, s, 0.0);  // H0: S <= 0
+  LinearFunctional neg = s;
+  for (auto& row : neg.coef)
+    for (auto& c : row) c = -c;
+  const TestResult down = lg_hoeffding_test(counts, neg, 0.0);  // H0: S >= 0
+  TestResult r;
+  r.method = "hoeffding";
+  r.statistic = s.estimate(counts);
+  r.p_value = std::min(1.0, 2.0 * std::min(up.p_value, down.p_value));
+  r.note = "finite-sample bound (Hoeffding 1963) over the independent sequences, any readout; "
+           "two-sided: twice the smaller one-sided bound";
   return with_sigma(r);
 }
 
@@ -128,7 +218,8 @@ BinomialArms nsit_binomial_arms(const CampaignCounts& counts, const std::string&
   if (counts.readout == Readout::destructive)
     throw UnsupportedError("NSIT " + from + "->" + to +
                            ": under destructive readout sum_a P_AB(a, +) comes from two sequences "
-                           "and is not one binomial; use the score test");
+                           "and is not one binomial, so no exact (Barnard / Boschloo) test applies; "
+                           "the score test and the finite-sample Hoeffding bound do");
   BinomialArms arms;
   bool one = false, two = false;
   for (const auto& s : counts.sequences) {
@@ -177,8 +268,12 @@ std::vector<TestResult> nsit_tests(const CampaignCounts& campaign, const std::st
   if (campaign.readout == Readout::nondestructive) {
     const BinomialArms a = nsit_binomial_arms(campaign, from, to);
     if (a.n1 > 0 && a.n2 > 0 && static_cast<double>(a.n1 + 1) * static_cast<double>(a.n2 + 1) <= 4e6)
+    {
       out.push_back(barnard_exact_test(a.x1, a.n1, a.x2, a.n2));
+      out.push_back(boschloo_exact_test(a.x1, a.n1, a.x2, a.n2));
+    }
   }
+  out.push_back(nsit_hoeffding_test(counts, s));
   if (margin) out.push_back(nsit_tost(counts, s, *margin));
   return out;
 }

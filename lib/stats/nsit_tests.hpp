@@ -15,6 +15,17 @@
 //     readout is non-destructive (all [A, B] shots show B); under destructive readout the
 //     [A, B] arm is a sum of two binomial proportions and only the score test applies
 //     (nsit_binomial_arms throws UnsupportedError saying so).
+//   Boschloo's exact unconditional test ("boschloo-exact"): the same two binomials and null;
+//     statistic Fisher's one-sided p-value (hypergeometric tail given x1 + x2), p = max over pi
+//     of P_pi(Fisher p <= observed) per side (Boschloo, Statistica Neerlandica 24:1 (1970));
+//     two-sided as scipy.stats.boschloo_exact: min(1, 2 min(p_less, p_greater)). Uniformly
+//     more powerful than Fisher's exact test; same destructive-readout restriction as Barnard.
+//   Hoeffding bound ("hoeffding"): two-sided finite-sample p-value for S = 0, twice the
+//     smaller of the one-sided Hoeffding (JASA 58:13 (1963)) bounds for S <= 0 and S >= 0 over
+//     the independent sequences (lg_hoeffding_test on S and -S). Needs no normal
+//     approximation and holds for any readout: under destructive readout, where S combines
+//     three independent sequences (B, AB+, AB-) and no exact test exists, it is the test that
+//     does not rest on asymptotics (conservative).
 //   TOST ("tost"): equivalence |S| < margin by two one-sided score tests at S = -margin and
 //     S = +margin, p = max of the two (Schuirmann, J. Pharmacokinet. Biopharm. 15:657 (1987));
 //     the null variances come from the constrained fits at S = +-margin.
@@ -37,6 +48,12 @@ TestResult nsit_score_test(const CellCounts& counts, const LinearFunctional& s);
 // UnsupportedError when (n1 + 1)(n2 + 1) > 4e6 (the score test is accurate there).
 TestResult barnard_exact_test(long x1, long n1, long x2, long n2);
 
+// Two-sided Boschloo exact test of p1 = p2; the same domain and size limits as Barnard's.
+TestResult boschloo_exact_test(long x1, long n1, long x2, long n2);
+
+// Two-sided Hoeffding finite-sample test of functional == 0.
+TestResult nsit_hoeffding_test(const CellCounts& counts, const LinearFunctional& s);
+
 struct BinomialArms {
   long x1 = 0, n1 = 0;  // B = + among runs of [B] alone
   long x2 = 0, n2 = 0;  // B = + among runs of [A, B]
@@ -48,8 +65,9 @@ BinomialArms nsit_binomial_arms(const CampaignCounts& counts, const std::string&
 // TOST for |S| < margin (margin > 0 and inside the functional's range).
 TestResult nsit_tost(const CellCounts& counts, const LinearFunctional& s, double margin);
 
-// The NSIT tests of a campaign: the score test; Barnard's exact test when the readout gives
-// two binomials and the enumeration is small enough; TOST when a margin is given.
+// The NSIT tests of a campaign: the score test; Barnard's and Boschloo's exact tests when the
+// readout gives two binomials and the enumeration is small enough; the Hoeffding bound; TOST
+// when a margin is given.
 std::vector<TestResult> nsit_tests(const CampaignCounts& campaign, const std::string& from,
                                    const std::string& to, std::optional<double> margin = {});
 

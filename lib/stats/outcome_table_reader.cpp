@@ -68,7 +68,9 @@ inline std::uint64_t short_word(const char* p, std::size_t n) {
   std::uint64_t w;
   std::memcpy(&w, p, 8);
   if constexpr (std::endian::native == std::endian::big) w = __builtin_bswap64(w);
-  return n >= 8 ? w : w & ((std::uint64_t{1} << (8 * n)) - 1);
+  // (2^(8n) - 1) without a branch for n = 8: shift the all-ones word right instead.
+  return w & (~std::uint64_t{0} >> (8 * (8 - std::min<std::size_t>(n, 8)) & 63) &
+              (n == 0 ? 0 : ~std::uint64_t{0}));
 }
 
 // The same word for a string of at most 8 bytes (longer ones: their first 8).
@@ -211,9 +213,13 @@ struct Decimal {
 // Leading '0' bytes pad the word to 8 digits; the digit test and the combination are the
 // well-known SWAR steps (e.g. Lemire, "Number parsing at a gigabyte per second", Softw.
 // Pract. Exp. 51:1700 (2021)).
-inline bool eight_digits(const char* p, std::size_t n, std::uint64_t& value) {
-  std::uint64_t w = short_word(p, n);
-  if (n < 8) w = (w << (8 * (8 - n))) | (0x3030303030303030ull >> (8 * n));
+[[gnu::always_inline]] inline bool eight_digits(const char* p, std::size_t n, std::uint64_t& value) {
+  // n in 1..8. Shifting the n digits to the top drops the bytes after them, so the word
+  // needs no mask; the leading bytes are filled with '0' (no branch for n = 8).
+  std::uint64_t w;
+  std::memcpy(&w, p, 8);
+  if constexpr (std::endian::native == std::endian::big) w = __builtin_bswap64(w);
+  w = (w << (8 * (8 - n))) | ((0x3030303030303030ull >> (8 * n - 1)) >> 1);
   if (((w & 0xF0F0F0F0F0F0F0F0ull) | (((w + 0x0606060606060606ull) & 0xF0F0F0F0F0F0F0F0ull) >> 4)) !=
       0x3333333333333333ull)
     return false;
@@ -224,7 +230,7 @@ inline bool eight_digits(const char* p, std::size_t n, std::uint64_t& value) {
 }
 
 // `f` must have 16 readable bytes from its start and 8 after its end.
-bool parse_time(std::string_view f, Decimal& d) {
+[[gnu::always_inline]] inline bool parse_time(std::string_view f, Decimal& d) {
   static constexpr double kInvPow10[16] = {1e0,  1e-1, 1e-2,  1e-3,  1e-4,  1e-5,  1e-6,  1e-7,
                                            1e-8, 1e-9, 1e-10, 1e-11, 1e-12, 1e-13, 1e-14, 1e-15};
   static constexpr std::uint64_t kPow10i[9] = {1,      10,      100,      1000,     10000,
@@ -280,6 +286,21 @@ void count_reason(RowSummary& rows, const char* reason, long n = 1) {
   rows.reasons[reason] += n;
 }
 
+constexpr std::size_t kFastTextMax = 24;  // fast-path results text: at most 3 words
+
+// For a text of length n <= kFastTextMax: the masks of its three 8-byte words.
+struct TextMasks {
+  std::uint64_t m[kFastTextMax + 1][3];
+  constexpr TextMasks() : m{} {
+    for (std::size_t n = 0; n <= kFastTextMax; ++n)
+      for (std::size_t i = 0; i < 3; ++i) {
+        const std::size_t k = n <= 8 * i ? 0 : std::min<std::size_t>(n - 8 * i, 8);
+        m[n][i] = k >= 8 ? ~std::uint64_t{0} : (std::uint64_t{1} << (8 * k)) - 1;
+      }
+  }
+};
+constexpr TextMasks kTextMasks{};
+
 // ----------------------------------------------------------------------------------------
 class CsvParser {
  public:
@@ -300,10 +321,34 @@ class CsvParser {
   // Parses the complete lines in [begin, end) (each ends with '\n', except possibly the
   // last one at the end of input); kPadding readable bytes without '\n' follow `end`.
   void lines(const char* begin, const char* end) {
+    // Separator masks are computed once per 64 bytes: `lo` covers [cb, cb + 64) and `hi`
+    // [cb + 64, cb + 128); a line starting at p sees the 64 bits from p spliced out of both.
+    // Bytes from `end` on have no '\n' and are only read up to end + kPadding.
+    const char* cb = begin;
+    std::uint64_t c_lo = 0, n_lo = 0, c_hi = 0, n_hi = 0;
+    auto load = [end](const char* at, std::uint64_t& c, std::uint64_t& n) {
+      if (at < end) separator_masks(at, c, n);
+      else c = n = 0;
+    };
+    load(cb, c_lo, n_lo);
+    load(cb + 64, c_hi, n_hi);
     const char* p = begin;
     while (p < end) {
-      std::uint64_t commas, newlines;
-      separator_masks(p, commas, newlines);
+      std::size_t o = static_cast<std::size_t>(p - cb);
+      if (o >= 64) {
+        if (o >= 128) {
+          cb = p;
+          load(cb, c_lo, n_lo);
+        } else {
+          cb += 64;
+          c_lo = c_hi;
+          n_lo = n_hi;
+        }
+        load(cb + 64, c_hi, n_hi);
+        o = static_cast<std::size_t>(p - cb);
+      }
+      const std::uint64_t commas = o == 0 ? c_lo : (c_lo >> o) | (c_hi << (64 - o));
+      const std::uint64_t newlines = o == 0 ? n_lo : (n_lo >> o) | (n_hi << (64 - o));
       const char* line_end;
       bool short_line = newlines != 0;
       if (short_line) {
@@ -331,7 +376,7 @@ class CsvParser {
   enum Role : int { kIgnore = -1, kSequence = -2, kShot = -3, kTime = -4 };  // >= 0: result k
 
   // `commas` is the comma mask of the line when `short_line` (the line has < 64 bytes).
-  void line(const char* b, const char* e, std::uint64_t commas, bool short_line) {
+  [[gnu::always_inline]] void line(const char* b, const char* e, std::uint64_t commas, bool short_line) {
     if (e > b && e[-1] == '\r') --e;
     if (b == e) return;  // blank line
     if (*b == '#') return;
@@ -339,6 +384,7 @@ class CsvParser {
       header(b, e);
       return;
     }
+    if (fast_.enabled && short_line && fast_row(b, e, commas)) return;
     row(b, e, commas, short_line);
   }
 
@@ -390,6 +436,214 @@ class CsvParser {
     field_begin_.assign(names.size(), nullptr);
     field_end_.assign(names.size(), nullptr);
     have_header_ = true;
+    build_fast_table(names);
+  }
+
+  // ---- Fast path for the documented column order -------------------------------------
+  // When the header is exactly `sequence[,shot][,time_s],r1,...,rN` and every sequence name
+  // has at most 8 bytes, a row whose results are words ("dark"/"bright") is recognised by
+  // one hash probe on (name, results text): the table holds, for every cell of every
+  // sequence, the exact text of the result fields `r1..rN` (empty fields after the end of
+  // a destructive shot included). A row that does not match exactly (counts, fewer
+  // trailing fields, an unknown name, a bad shot or time, a duplicate) goes to row(),
+  // which validates it and names the rule; the fast path only accepts rows row() would
+  // accept with the same effect, so the two paths agree row for row.
+  struct FastSlot {
+    std::uint64_t name = 0, w0 = 0, w1 = 0, w2 = 0;
+    std::uint32_t lens = 0;  // name length | results text length << 8
+    int seq = -1;            // -1: empty slot
+    int cell = -1;
+  };
+  struct FastTable {
+    bool enabled = false;
+    bool has_shot = false, has_time = false;
+    std::vector<FastSlot> slots;
+    std::size_t mask = 0;
+    std::uint64_t mult = 1;  // slot = (hash * mult) >> shift, chosen so no two cells collide
+    int shift = 58;
+    std::vector<double*> counts;  // per sequence: its counts array
+  };
+
+  static std::uint64_t fast_hash(std::uint64_t name, std::uint64_t w0, std::uint64_t w1,
+                                 std::uint64_t w2, std::uint32_t lens) {
+    // Independent products, so the multiplications overlap; collisions only cost a probe.
+    const std::uint64_t h = (name ^ lens) * 0x9E3779B97F4A7C15ull + w0 * 0xC2B2AE3D27D4EB4Full +
+                            w1 * 0x165667B19E3779F9ull + w2 * 0xD6E8FEB86659FD93ull;
+    return h ^ (h >> 29) ^ (h >> 43);
+  }
+
+  // The 8-byte word of bytes [8i, 8i+8) of a text of length n (masked to the text).
+  static std::uint64_t text_word(const char* p, std::size_t n, std::size_t i) {
+    const std::size_t from = 8 * i;
+    const std::size_t k = n <= from ? 0 : std::min<std::size_t>(n - from, 8);
+    return short_word(p + from, k);
+  }
+
+  void build_fast_table(const std::vector<std::string>& names) {
+    fast_ = FastTable{};
+    if (names.empty() || names[0] != "sequence") return;
+    std::size_t c = 1;
+    if (c < names.size() && names[c] == "shot") fast_.has_shot = true, ++c;
+    if (c < names.size() && names[c] == "time_s") fast_.has_time = true, ++c;
+    const std::size_t nres = names.size() - c;
+    if (nres == 0 || result_columns_.size() != nres) return;
+    for (std::size_t k = 0; k < nres; ++k)
+      if (roles_[c + k] != static_cast<int>(k)) return;
+    for (const auto& s : result_.counts.sequences)
+      if (s.name.empty() || s.name.size() > 8) return;
+    std::vector<FastSlot> entries;
+    for (std::size_t s = 0; s < shapes_.size(); ++s) {
+      const auto& code_to_cell = shapes_[s].code_to_cell;
+      for (std::size_t code = 2; code < code_to_cell.size(); ++code) {
+        if (code_to_cell[code] < 0) continue;
+        const std::size_t len = static_cast<std::size_t>(std::bit_width(code)) - 1;
+        if (len > nres) continue;  // needs more result columns than the header has
+        std::string text;
+        for (std::size_t k = 0; k < nres; ++k) {
+          if (k > 0) text += ',';
+          if (k < len) text += ((code >> (len - 1 - k)) & 1u) ? "bright" : "dark";
+        }
+        if (text.size() > kFastTextMax) continue;
+        const std::string& name = result_.counts.sequences[s].name;
+        const std::size_t tl = text.size();
+        text.append(kFastTextMax + 8, '\0');  // text_word reads whole words
+        const std::string padded_name = name + std::string(8, '\0');
+        FastSlot e;
+        e.name = short_word(padded_name.data(), name.size());
+        e.w0 = text_word(text.data(), tl, 0);
+        e.w1 = text_word(text.data(), tl, 1);
+        e.w2 = text_word(text.data(), tl, 2);
+        e.lens = static_cast<std::uint32_t>(name.size() | (tl << 8));
+        e.seq = static_cast<int>(s);
+        e.cell = code_to_cell[code];
+        entries.push_back(e);
+      }
+    }
+    // Every valid row should find its cell at the first probe (no mispredicted second
+    // probe): try multipliers, then larger tables, until no two cells share a home slot;
+    // if none is found the table still works with linear probing.
+    std::size_t cap = 64;
+    int bits = 6;
+    while (cap < 4 * entries.size()) cap *= 2, ++bits;
+    std::uint64_t mult = 0x9E3779B97F4A7C15ull;
+    for (bool placed = false; !placed;) {
+      for (int attempt = 0; attempt < 64 && !placed; ++attempt) {
+        mult = mult * 6364136223846793005ull + 1442695040888963407ull;
+        mult |= 1u;
+        std::vector<char> used(cap, 0);
+        placed = true;
+        for (const auto& e : entries) {
+          const std::size_t h = (fast_hash(e.name, e.w0, e.w1, e.w2, e.lens) * mult) >> (64 - bits);
+          if (used[h]) {
+            placed = false;
+            break;
+          }
+          used[h] = 1;
+        }
+      }
+      if (!placed) {
+        if (cap >= 1024) break;
+        cap *= 2;
+        ++bits;
+      }
+    }
+    fast_.slots.assign(cap, FastSlot{});
+    fast_.mask = cap - 1;
+    fast_.mult = mult;
+    fast_.shift = 64 - bits;
+    for (const auto& e : entries) {
+      std::size_t h = (fast_hash(e.name, e.w0, e.w1, e.w2, e.lens) * mult) >> fast_.shift;
+      while (fast_.slots[h].seq >= 0) h = (h + 1) & fast_.mask;
+      fast_.slots[h] = e;
+    }
+    for (auto& s : result_.counts.sequences) fast_.counts.push_back(s.counts.data());
+    fast_.enabled = true;
+  }
+
+  // Returns false (and changes nothing) unless the row is a plain valid row of the table.
+  [[gnu::always_inline]] bool fast_row(const char* b, const char* e, std::uint64_t commas) {
+    const std::size_t line_len = static_cast<std::size_t>(e - b);  // < 64
+    std::uint64_t m = commas & ((std::uint64_t{1} << line_len) - 1);
+    if (m == 0) return false;
+    const char* c = b + __builtin_ctzll(m);
+    m &= m - 1;
+    const std::size_t name_len = static_cast<std::size_t>(c - b);
+    if (name_len == 0 || name_len > 8) return false;
+    const char* q = c + 1;
+    const char *shot_b = q, *shot_e = q, *time_b = q, *time_e = q;
+    if (fast_.has_shot) {
+      if (m == 0) return false;
+      c = b + __builtin_ctzll(m);
+      m &= m - 1;
+      shot_b = q;
+      shot_e = c;
+      q = c + 1;
+    }
+    if (fast_.has_time) {
+      if (m == 0) return false;
+      c = b + __builtin_ctzll(m);
+      m &= m - 1;
+      time_b = q;
+      time_e = c;
+      q = c + 1;
+    }
+    const std::size_t tl = static_cast<std::size_t>(e - q);
+    if (tl > kFastTextMax) return false;
+    const std::uint64_t name = short_word(b, name_len);
+    const auto& tm = kTextMasks.m[tl];
+    std::uint64_t w0, w1, w2;
+    std::memcpy(&w0, q, 8);
+    std::memcpy(&w1, q + 8, 8);
+    std::memcpy(&w2, q + 16, 8);
+    if constexpr (std::endian::native == std::endian::big) {
+      w0 = __builtin_bswap64(w0);
+      w1 = __builtin_bswap64(w1);
+      w2 = __builtin_bswap64(w2);
+    }
+    w0 &= tm[0];
+    w1 &= tm[1];
+    w2 &= tm[2];
+    const std::uint32_t lens = static_cast<std::uint32_t>(name_len | (tl << 8));
+    const FastSlot* slot;
+    for (std::size_t h = (fast_hash(name, w0, w1, w2, lens) * fast_.mult) >> fast_.shift;;
+         h = (h + 1) & fast_.mask) {
+      slot = &fast_.slots[h];
+      if (slot->seq < 0) return false;
+      if (((slot->name ^ name) | (slot->w0 ^ w0) | (slot->w1 ^ w1) | (slot->w2 ^ w2) |
+           (slot->lens ^ lens)) == 0)
+        break;
+    }
+    auto& shape = shapes_[static_cast<std::size_t>(slot->seq)];
+    std::uint64_t shot = 0;
+    const std::size_t shot_len = static_cast<std::size_t>(shot_e - shot_b);
+    if (shot_len > 0) {
+      if (shot_len > 8 || !eight_digits(shot_b, shot_len, shot)) return false;
+      const std::size_t word = static_cast<std::size_t>(shot >> 6);
+      if (word < shape.seen.size() && (shape.seen[word] >> (shot & 63)) & 1u) return false;
+    }
+    Decimal t;
+    const std::size_t time_len = static_cast<std::size_t>(time_e - time_b);
+    if (time_len > 0 && !parse_time(std::string_view(time_b, time_len), t)) return false;
+
+    // Accepted: the same bookkeeping as row().
+    auto& rows = result_.counts.rows;
+    ++rows.read;
+    ++rows.used;
+    fast_.counts[static_cast<std::size_t>(slot->seq)][slot->cell] += 1.0;
+    if (shot_len > 0) {
+      const std::size_t word = static_cast<std::size_t>(shot >> 6);
+      if (word >= shape.seen.size()) shape.seen.resize(std::max(word + 1, 2 * shape.seen.size()), 0);
+      shape.seen[word] |= std::uint64_t{1} << (shot & 63);
+    }
+    if (time_len > 0) {
+      auto& tr = times_[static_cast<std::size_t>(slot->seq)];
+      if (!tr.any) tr = {true, t, t};
+      else {
+        if (t.approx < tr.first.approx) tr.first = t;
+        if (t.approx > tr.last.approx) tr.last = t;
+      }
+    }
+    return true;
   }
 
   std::string where(int column) const {
@@ -572,6 +826,7 @@ class CsvParser {
   std::vector<std::string> column_names_;
   std::vector<int> result_columns_;  // column of r(k+1)
   std::vector<const char*> field_begin_, field_end_;  // the current row's fields
+  FastTable fast_;
 };
 
 }  // namespace

@@ -10,6 +10,9 @@ Sources (each value in the JSON says which):
     and, independently, from a brute-force per-shot stratified jackknife written here.
   * scipy.stats.barnard_exact (two-sided, pooled) and a brute-force 20001-point grid maximum
     of the same p-value function.
+  * scipy.stats.boschloo_exact (two-sided: twice the smaller one-sided p) and a brute-force
+    20001-point grid maximum of the one-sided p-value functions, with Fisher's one-sided
+    p-values from scipy.stats.hypergeom.
   * scipy.stats.chi2_contingency(correction=False): the Pearson chi-square p-value equals the
     two-sided pooled z (score) test of two proportions.
   * scipy.stats.binomtest(alternative='greater'): exact one-sided binomial p-value, which the
@@ -112,6 +115,24 @@ def barnard_grid(x1, n1, x2, n2, points=20001):
     return float(best), float(w[x1, x2])
 
 
+def boschloo_grid(x1, n1, x2, n2, points=20001):
+    a = np.arange(n1 + 1)[:, None]
+    b = np.arange(n2 + 1)[None, :]
+    total = n1 + n2
+    less = stats.hypergeom.cdf(a, total, a + b, n1)      # P(X1 <= a | a + b)
+    greater = stats.hypergeom.sf(a - 1, total, a + b, n1)  # P(X1 >= a | a + b)
+    pis = np.linspace(0, 1, points)
+    out = []
+    for fisher in (less, greater):
+        region = fisher <= fisher[x1, x2] * (1 + 1e-12)
+        best = 0.0
+        for pi in pis:
+            pm = stats.binom.pmf(np.arange(n1 + 1), n1, pi)[:, None] * stats.binom.pmf(np.arange(n2 + 1), n2, pi)[None, :]
+            best = max(best, pm[region].sum())
+        out.append(best)
+    return float(min(1.0, 2 * min(out)))
+
+
 def restricted_var(x1, n1, x2, n2, d):
     # max loglik over p1 - p2 = d; returns Var(p1^ - p2^) at the restricted fit
     def nll(p2):
@@ -197,10 +218,13 @@ def main():
     for x1, n1, x2, n2 in tables:
         bar = stats.barnard_exact([[x1, x2], [n1 - x1, n2 - x2]], alternative="two-sided", pooled=True)
         grid, w = barnard_grid(x1, n1, x2, n2)
+        bos = stats.boschloo_exact([[x1, x2], [n1 - x1, n2 - x2]], alternative="two-sided")
         chi = stats.chi2_contingency([[x1, x2], [n1 - x1, n2 - x2]], correction=False)
         ref["two_binomial"].append({
             "x1": x1, "n1": n1, "x2": x2, "n2": n2, "wald": w,
             "barnard_scipy": float(bar.pvalue), "barnard_grid": grid,
+            "boschloo_scipy": float(bos.pvalue), "boschloo_statistic_scipy": float(bos.statistic),
+            "boschloo_grid": boschloo_grid(x1, n1, x2, n2),
             "score_chi2_p": float(chi[1]) if (x1 + x2) not in (0, n1 + n2) else 1.0,
             "tost_margin": 0.2, "tost_p": tost(x1, n1, x2, n2, 0.2) if 0 < x1 < n1 and 0 < x2 < n2 else None,
         })
@@ -217,6 +241,16 @@ def main():
         ref["finite_sample"].append({"counts": [counts[k] for k in K_ORDER], "bound": bound,
                                      "estimate": float(est), "hoeffding_p": hp,
                                      "empirical_bernstein_p": emp_bernstein(counts, K_COEF, K_ORDER, bound)})
+    # NSIT S (S_COUNTS): two-sided Hoeffding = twice the smaller one-sided bound.
+    neg = {k: [-c for c in v] for k, v in S_COEF.items()}
+    s_est, h_up = hoeffding(S_COUNTS, S_COEF, S_ORDER, 0.0)
+    _, h_down = hoeffding(S_COUNTS, neg, S_ORDER, 0.0)
+    s_big = {k: [8 * c for c in v] for k, v in S_COUNTS.items()}
+    _, hb_up = hoeffding(s_big, S_COEF, S_ORDER, 0.0)
+    _, hb_down = hoeffding(s_big, neg, S_ORDER, 0.0)
+    ref["nsit_hoeffding"] = [{"counts": [S_COUNTS[k] for k in S_ORDER], "estimate": float(s_est),
+                              "p": min(1.0, 2 * min(h_up, h_down))},
+                             {"counts": [s_big[k] for k in S_ORDER], "p": min(1.0, 2 * min(hb_up, hb_down))}]
     bh15 = [0.0001, 0.0004, 0.0019, 0.0095, 0.0201, 0.0278, 0.0298, 0.0344, 0.0459, 0.3240,
             0.4262, 0.5719, 0.6528, 0.7590, 1.000]
     mixed = [0.04, 0.001, 0.03, 0.5, 0.012, 0.012, 0.2]

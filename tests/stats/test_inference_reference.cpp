@@ -163,6 +163,18 @@ TEST_CASE("NSIT tests: Barnard exact, score and TOST against SciPy", "[stats]") 
     CHECK_CLOSE(b.p_value, t["barnard_scipy"].get<double>(), 0.0, 1e-3);
     CHECK_CLOSE(b.p_value, std::min(1.0, t["barnard_grid"].get<double>()), 0.0, 1e-6);
     CHECK_CLOSE(b.statistic, t["wald"].get<double>(), 1e-12, 1e-12);
+    const TestResult bo = boschloo_exact_test(x1, n1, x2, n2);
+    // Source: scipy.stats.boschloo_exact (two-sided = twice the smaller one-sided p; shgo
+    // maximiser, rel 1e-3 for its search error), a 20001-point grid maximum of the same
+    // functions with scipy.stats.hypergeom tails (rel 1e-6), and SciPy's statistic (the
+    // Fisher one-sided p-value of the smaller side).
+    CHECK(bo.method == "boschloo-exact");
+    CHECK_CLOSE(bo.p_value, t["boschloo_scipy"].get<double>(), 0.0, 1e-3);
+    CHECK_CLOSE(bo.p_value, t["boschloo_grid"].get<double>(), 0.0, 1e-6);
+    CHECK_CLOSE(bo.statistic, t["boschloo_statistic_scipy"].get<double>(), 1e-14, 1e-9);
+    // Boschloo's test is at least as powerful as Fisher's exact test, whose two-sided p here
+    // is at most twice its statistic (Boschloo 1970): p_Boschloo <= min(1, 2 * Fisher p).
+    CHECK(bo.p_value <= std::min(1.0, 2.0 * bo.statistic) * (1 + 1e-9));
     // Score test == Pearson chi-square without continuity correction (scipy.stats.chi2_contingency).
     LinearFunctional f;
     f.coef = {{1.0, 0.0}, {-1.0, 0.0}};
@@ -177,6 +189,22 @@ TEST_CASE("NSIT tests: Barnard exact, score and TOST against SciPy", "[stats]") 
   }
   CHECK_THROWS_AS(barnard_exact_test(5, 4, 1, 3), DomainError);
   CHECK_THROWS_AS(barnard_exact_test(5000, 10000, 10, 10000), UnsupportedError);
+  CHECK_THROWS_AS(boschloo_exact_test(5, 4, 1, 3), DomainError);
+  CHECK_THROWS_AS(boschloo_exact_test(5000, 10000, 10, 10000), UnsupportedError);
+}
+
+TEST_CASE("NSIT: two-sided Hoeffding bound against the reference script", "[stats]") {
+  const auto ref = scipy_stats_reference();
+  // Source: Hoeffding, JASA 58:13 (1963), Thm 2, written independently in
+  // tests/reference/scipy_stats_reference.py; two-sided = twice the smaller one-sided bound.
+  for (const auto& t : ref["nsit_hoeffding"]) {
+    const CellCounts c = t["counts"].get<CellCounts>();
+    const CampaignCounts camp = nsit_campaign(c);
+    const LinearFunctional s = nsit_functional(camp, "A", "B");
+    const TestResult h = nsit_hoeffding_test(c, s);
+    CHECK(h.method == "hoeffding");
+    CHECK_CLOSE(h.p_value, t["p"].get<double>(), 1e-12, 1e-9);
+  }
 }
 
 TEST_CASE("NSIT: binomial arms need non-destructive readout", "[stats]") {
@@ -236,11 +264,18 @@ TEST_CASE("Campaign-level LG and NSIT test lists", "[stats]") {
   nd.sequences.push_back(make_sequence("B", {"B"}, {+1}, {12, 8}, Readout::nondestructive));
   nd.sequences.push_back(make_sequence("AB", {"A", "B"}, {+1, +1}, {5, 3, 6, 6}, Readout::nondestructive));
   const auto ns = nsit_tests(nd, "A", "B", 0.2);
-  REQUIRE(ns.size() == 3);
+  REQUIRE(ns.size() == 5);
   CHECK(ns[0].method == "score");
   CHECK(ns[1].method == "barnard-exact");
   CHECK(ns[1].p_value == barnard_exact_test(12, 20, 11, 20).p_value);
-  CHECK(ns[2].method == "tost");
+  CHECK(ns[2].method == "boschloo-exact");
+  CHECK(ns[2].p_value == boschloo_exact_test(12, 20, 11, 20).p_value);
+  CHECK(ns[3].method == "hoeffding");
+  CHECK(ns[4].method == "tost");
+  // Destructive readout: no exact test exists (S combines three sequences); the score test
+  // and the finite-sample Hoeffding bound remain.
   const auto nsd = nsit_tests(nsit_campaign({{10, 5}, {3, 4, 5}, {2, 2, 2}}), "A", "B");
-  CHECK(nsd.size() == 1);
+  REQUIRE(nsd.size() == 2);
+  CHECK(nsd[0].method == "score");
+  CHECK(nsd[1].method == "hoeffding");
 }
