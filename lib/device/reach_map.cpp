@@ -39,6 +39,7 @@ ReachMap reach_map(const DeviceSpec& spec, const std::string& x_param, const std
     }
   ReachOptions ro = options.reach;
   ro.elasticities = false;
+  ro.search = options.search;
   ro.evaluate_thermal_route = ro.test == ReachTest::nsit;  // LG: the thermal route never is
   const long n = static_cast<long>(map.points.size());
   const int threads = options.threads > 0 ? options.threads : omp_get_max_threads();

@@ -29,6 +29,10 @@ struct ReachMap {
 
 struct MapOptions {
   ReachOptions reach;  // elasticities are switched off for maps
+  // The per-point search of a map is lighter than a single run's (ReachOptions::search): the
+  // map shows where the feasibility boundary lies, and the single run at a chosen point gives
+  // the optimised figures.
+  SearchOptions search{2, 150, 1e-5, 1, GlobalStage::direct_l, LocalPolish::bobyqa, 0.5};
   int shard = 1, shards = 1;
   int threads = 0;     // 0: OpenMP default
 };

@@ -315,8 +315,6 @@ TEST_CASE("reach map: same bytes for any thread count and for merged shards", "[
   spec.ranges.at("bath_temperature_k").values.resize(3);  // a 3 x 2 corner keeps it fast
   spec.ranges.at("coupling_g_over_2pi_hz").values.resize(2);
   MapOptions mo;
-  mo.reach.search.max_evaluations = 150;
-  mo.reach.search.starts = 2;
   mo.threads = 1;
   const ReachMap one = reach_map(spec, "bath_temperature_k", "coupling_g_over_2pi_hz", mo);
   const std::string csv1 = map_csv_text(one, mo.reach);
