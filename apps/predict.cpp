@@ -22,6 +22,7 @@ struct PredictArgs {
   bool json = false;
   std::string output = "-";
   std::string engine = "auto";
+  double truncation_tolerance = 0.0;
 };
 
 int run_predict(const PredictArgs& args) {
@@ -38,6 +39,7 @@ int run_predict(const PredictArgs& args) {
   }
   PredictOptions options;
   options.engine_kind = parse_engine_kind(args.engine);
+  options.fock.truncation_tolerance = args.truncation_tolerance;
   const PredictionResult result = predict(proto, options);
   const std::string text = args.json ? prediction_json_text(result) : prediction_text(result);
   if (args.output == "-") {
@@ -63,6 +65,10 @@ void register_predict(CLI::App& app) {
   cmd->add_flag("--json", args->json, "write one JSON object (probabilities, tests, engine, cautions) instead of the text report");
   cmd->add_option("-o,--output", args->output, "write to FILE instead of standard output (- : stdout)")
       ->type_name("FILE|-");
+  cmd->add_option("--truncation-tolerance", args->truncation_tolerance,
+                  "Fock engine: refuse (exit 2) when a result changes by more than this when the "
+                  "cutoff grows by 25 % (default 0: report the change, never refuse)")
+      ->check(CLI::NonNegativeNumber);
   cmd->add_option("--engine", args->engine,
                   "engine for the quantum probabilities: auto (default: weyl where it applies, "
                   "fock otherwise; the output says which ran and why), weyl (exact displacement "

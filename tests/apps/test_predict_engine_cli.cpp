@@ -242,3 +242,20 @@ TEST_CASE("predict CLI: dephasing runs on the Weyl quadrature or switches to Foc
           std::string::npos);
   }
 }
+
+TEST_CASE("predict CLI: the Fock engine refuses when the requested truncation tolerance is not met",
+          "[apps][fock]") {
+  // A cat of |alpha| = 2 needs a few dozen Fock levels; growing the cutoff by 25 % changes the
+  // probabilities by round-off at most, which is still above 1e-300, so the request cannot be
+  // met and the engine must refuse (exit 2, message naming the tolerance). A tolerance of 1e-6
+  // is met and the run succeeds with the same output as without the option.
+  const std::string file = shipped("lg3_prepared_cat_conclusive.json");
+  const Run refused = run("predict --engine fock --truncation-tolerance 1e-300 '" + file + "'");
+  CHECK(refused.code == 2);
+  CHECK(refused.err.find("truncation_tolerance") != std::string::npos);
+  CHECK(refused.out.empty());
+  const Run met = run("predict --engine fock --truncation-tolerance 1e-6 '" + file + "'");
+  CHECK(met.code == 0);
+  CHECK(met.out == run("predict --engine fock '" + file + "'").out);
+  CHECK(run("predict --truncation-tolerance -1 '" + file + "'").code == 2);
+}
