@@ -52,7 +52,7 @@ TEST_CASE("simulate: the shipped demo tables are re-made byte for byte", "[apps]
   }
 }
 
-TEST_CASE("simulate: -o - writes the same table to stdout; --json summarises", "[apps][simulate]") {
+TEST_CASE("simulate: -o - writes the same table to stdout, --json summarises", "[apps][simulate]") {
   const std::string args = "simulate protocols/lg3_thermal.json --shots 200 --seed 5";
   const CliRun to_stdout = run(args + " -o -");
   REQUIRE(to_stdout.code == 0);
@@ -75,7 +75,7 @@ TEST_CASE("simulate: --help states the ruined-state assumption and gives an exam
   CHECK(r.out.find("macroreal simulate protocols/lg3_thermal.json") != std::string::npos);
 }
 
-TEST_CASE("simulate: an allocation file drives the shots; bad ones exit 2 naming file and field",
+TEST_CASE("simulate: an allocation file drives the shots, bad ones exit 2 naming file and field",
           "[apps][simulate]") {
   const std::string good = write_temp(
       "good.json", R"({"format": "macroreal-allocation/1", "shots": {"AB+": 30, "B": 12},

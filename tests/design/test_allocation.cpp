@@ -23,8 +23,12 @@ std::vector<SequenceCost> strata(const std::vector<double>& Nh, const std::vecto
   double N = 0.0;
   for (double x : Nh) N += x;
   std::vector<SequenceCost> c;
-  for (std::size_t h = 0; h < Nh.size(); ++h)
-    c.push_back({"h" + std::to_string(h), (Nh[h] / N) * (Nh[h] / N) * Sh[h] * Sh[h], Ch[h]});
+  for (std::size_t h = 0; h < Nh.size(); ++h) {
+    // Name appended in place: GCC 12 warns falsely (-Wrestrict) on "h" + std::to_string(h).
+    std::string name = std::to_string(h);
+    name.insert(name.begin(), 'h');
+    c.push_back({name, (Nh[h] / N) * (Nh[h] / N) * Sh[h] * Sh[h], Ch[h]});
+  }
   return c;
 }
 

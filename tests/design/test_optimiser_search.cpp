@@ -87,7 +87,7 @@ TEST_CASE("maximise finds the Hartmann-3 global optimum", "[design]") {
   CHECK(r.value >= grid_best - 1e-12);
 }
 
-TEST_CASE("maximise: infeasible points (NaN) are never chosen; fixed parameters stay fixed",
+TEST_CASE("maximise: infeasible points (NaN) are never chosen, fixed parameters stay fixed",
           "[design]") {
   SearchProblem p;
   p.lower = {-2.0, -2.0, 0.7};

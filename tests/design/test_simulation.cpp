@@ -242,7 +242,7 @@ TEST_CASE("photon counts: Poisson counts read with the threshold give the tail e
               "bright3 first reading dark");
 }
 
-TEST_CASE("same seed gives the same bytes; the header records seed, checksum, assumptions",
+TEST_CASE("same seed gives the same bytes, the header records seed, checksum, assumptions",
           "[design][simulation]") {
   const Protocol protocol = lg3();
   SimulationOptions o = options_for(protocol, 3000, 7);

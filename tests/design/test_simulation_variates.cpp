@@ -44,7 +44,7 @@ TEST_CASE("poisson draws follow the Poisson pmf", "[design][simulation]") {
   }
 }
 
-TEST_CASE("poisson_cdf against direct summation; bad means are refused", "[design][simulation]") {
+TEST_CASE("poisson_cdf against direct summation, bad means are refused", "[design][simulation]") {
   // P(X <= 2) = e^-m (1 + m + m^2/2) (Johnson, Kemp & Kotz 2005, eq. 4.1 summed).
   for (const double m : {0.1, 2.0, 8.0})
     CHECK_CLOSE(poisson_cdf(2, m), std::exp(-m) * (1 + m + m * m / 2), 1e-14, 1e-13);

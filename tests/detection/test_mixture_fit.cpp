@@ -70,7 +70,7 @@ TEST_CASE("mixture fit: unknown shots alone are enough when two components show"
   CHECK_CLOSE(f.bright_fraction, 0.5, 4 * std::sqrt(0.25 / 6000) + 0.01, 0);
 }
 
-TEST_CASE("mixture fit with the decay model recovers the rates; the plain model misfits", "[detection]") {
+TEST_CASE("mixture fit with the decay model recovers the rates, the plain model misfits", "[detection]") {
   RandomEngine g(99);
   const CountModel truth{0.2, 10.0, 0.3};  // pumped within the window in 26% of dark shots
   const CountHistograms h = simulate_calibration(g, truth, 4000, 4000, 0, 0);

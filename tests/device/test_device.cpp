@@ -245,7 +245,7 @@ TEST_CASE("bath decoherence vs the Fock engine for a straight branch path (n_th 
   }
 }
 
-TEST_CASE("no decoherence: the device path reproduces the Weyl engine for the mapped settings; "
+TEST_CASE("no decoherence: the device path reproduces the Weyl engine for the mapped settings, "
           "time to conclusive from the correlators", "[device]") {
   DevicePoint p = unit_point(0.15, 1e300, 0.0, 0.0, InteractionScheme::echo, 3);
   p.mechanical_frequency_hz = 1e6;
