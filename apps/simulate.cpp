@@ -17,10 +17,7 @@
 #include "design/simulated_table_writer.hpp"
 #include "design/allocation_file.hpp"
 #include "protocol/protocol_reader.hpp"
-#if __has_include("detection/calibration_file.hpp")
 #include "detection/calibration_file.hpp"
-#define MACROREAL_SIMULATE_HAS_CALIBRATION 1
-#endif
 
 namespace macroreal::apps {
 
@@ -152,17 +149,12 @@ int run_simulate(const SimulateArgs& args) {
   options.errors = {proto.detection.dark_read_bright, proto.detection.bright_read_dark};
   std::optional<PhotonCountModel> counts;
   if (!args.calibration.empty()) {
-#ifdef MACROREAL_SIMULATE_HAS_CALIBRATION
     const Calibration cal = read_calibration(args.calibration);
     options.errors = {cal.dark_read_bright, cal.bright_read_dark};
     counts = PhotonCountModel{cal.dark_rate, cal.bright_rate, cal.threshold};
     source = "calibration " + args.calibration;
     if (cal.dark_lifetime_s)
       source += " (its dark-state decay model is not simulated: counts are pure Poisson)";
-#else
-    throw UnsupportedError("simulate: --calibration needs lib/detection/calibration_file.hpp, "
-                           "which this build does not have");
-#endif
   }
   if (args.dark_read_bright >= 0 || args.bright_read_dark >= 0) {
     if (args.dark_read_bright >= 0) options.errors.dark_read_bright = args.dark_read_bright;

@@ -1,8 +1,10 @@
 // `macroreal simulate` as a program: the shipped simulated demo tables re-made byte for byte
 // from the command in their own header, -o - on stdout, --help with the assumption and an
 // example, and bad input (allocation file, shots) -> exit 2 naming the file and the field.
+#include <cmath>
 #include <filesystem>
 #include <fstream>
+#include <sstream>
 #include <string>
 
 #include <catch2/catch.hpp>
@@ -124,4 +126,64 @@ TEST_CASE("simulate: bad command lines exit 2 with the option named", "[apps][si
   r = run("simulate protocols/lg3_thermal.json --shots 5 --seed 1 --counts -o -");
   CHECK(r.code == 2);
   CHECK(r.err.find("--dark-rate") != std::string::npos);
+}
+
+namespace {
+
+// The data rows of a table (everything but the # comment lines).
+std::string data_rows(const std::string& table) {
+  std::string out, line;
+  std::istringstream in(table);
+  while (std::getline(in, line))
+    if (line.empty() || line[0] != '#') out += line + "\n";
+  return out;
+}
+
+}  // namespace
+
+TEST_CASE("simulate: a calibration file sets the photon-count rates, threshold and error rates",
+          "[apps][simulate]") {
+  // The calibration file's numbers (example_runs/calibration.json) typed out as options must give
+  // the same data rows: the file is read and its values are the ones used.
+  const std::string base = "simulate protocols/lg3_thermal.json --shots 4000 --seed 11 --counts ";
+  const CliRun from_file = run(base + "--calibration example_runs/calibration.json -o -");
+  REQUIRE(from_file.code == 0);
+  CHECK(from_file.out.find("calibration example_runs/calibration.json") != std::string::npos);
+  const CliRun typed = run(base +
+                           "--dark-rate 0.11527436068228764 --bright-rate 9.506092723498426 "
+                           "--threshold 2 --dark-read-bright 0.00023421168127465926 "
+                           "--bright-read-dark 0.004143103130723084 -o -");
+  REQUIRE(typed.code == 0);
+  CHECK(data_rows(from_file.out) == data_rows(typed.out));
+  // Counts read bright (> 2) come from Poisson(9.506) given X > 2: E[X | X > 2] = 9.538
+  // (Johnson, Kemp & Kotz, Univariate Discrete Distributions, 3rd ed. (2005), ch. 4: the
+  // truncated Poisson mean, evaluated here by hand), plus at most 2.3e-4 * 9.5 from dark
+  // shots above the threshold. Tolerance: 5 standard errors sqrt(9.5 / n).
+  double sum = 0.0;
+  long n = 0;
+  std::istringstream in(data_rows(from_file.out));
+  std::string line;
+  std::getline(in, line);  // header
+  while (std::getline(in, line)) {
+    std::istringstream cells(line);
+    std::string cell;
+    int column = 0;
+    while (std::getline(cells, cell, ',')) {
+      if (column++ >= 3 && !cell.empty()) {
+        const long count = std::stol(cell);
+        REQUIRE(count >= 0);
+        if (count > 2) {
+          sum += static_cast<double>(count);
+          ++n;
+        }
+      }
+    }
+  }
+  REQUIRE(n > 1000);
+  CHECK(std::abs(sum / n - 9.538) < 5.0 * std::sqrt(9.5 / n) + 0.003);
+  // A calibration file that is not one exits 2 naming the file.
+  const std::string bad = write_temp("bad_calibration.json", "{\"format\": \"something-else\"}");
+  const CliRun r = run(base + "--calibration '" + bad + "' -o -");
+  CHECK(r.code == 2);
+  CHECK(r.err.find("bad_calibration.json") != std::string::npos);
 }
