@@ -57,7 +57,7 @@ std::vector<std::string> not_established(const CalibrationResult&) {
       "extrapolation at fixed rates per second.",
       "Errors from state preparation versus detection: the two are not separated.",
       "The readout errors inside a sequence (back-action of a misread bright shot on the "
-      "oscillator); those are modelled by analyse, not measured here.",
+      "oscillator): not measured here, and not yet corrected by analyse.",
   };
 }
 
