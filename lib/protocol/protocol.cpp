@@ -35,6 +35,19 @@ MeasurementSequence Protocol::sequence_of(const std::vector<std::string>& steps)
   return seq;
 }
 
+std::vector<std::vector<int>> dark_patterns(std::size_t steps, Readout readout) {
+  std::vector<std::vector<int>> out;
+  if (steps == 0) return out;
+  const std::size_t patterns = readout == Readout::destructive ? (std::size_t{1} << (steps - 1)) : 1;
+  for (std::size_t p = 0; p < patterns; ++p) {
+    std::vector<int> dark(steps, +1);
+    for (std::size_t k = 0; k + 1 < steps; ++k)
+      if ((p >> (steps - 2 - k)) & 1u) dark[k] = -1;
+    out.push_back(std::move(dark));
+  }
+  return out;
+}
+
 std::vector<std::vector<std::string>> Protocol::step_sets_needed() const {
   std::vector<std::vector<std::string>> sets;
   const auto add = [&sets](std::vector<std::string> s) {

@@ -96,6 +96,13 @@ double noise_field(const NoiseModel& noise, const std::string& field);
 // finite and >= 0 (every noise parameter is a non-negative rate, occupation or sd).
 Protocol with_noise_value(const Protocol& protocol, const std::string& field, double value);
 
+// The configurations (dark sign per step) a test needs for `steps` measurements: under
+// destructive readout all 2^(n-1) patterns of the non-final steps in the order "++", "+-",
+// "-+", "--" (first step most significant; the last step's entry is +1), under
+// non-destructive readout the single all-+ pattern. One definition for the reader's
+// generated sequences and the protocol builders, so both name and order them alike.
+std::vector<std::vector<int>> dark_patterns(std::size_t steps, Readout readout);
+
 // Name of a generated sequence: steps concatenated, then (destructive readout) the dark sign
 // of every step but the last, e.g. "AB+" (DESIGN.md section 8).
 std::string generated_sequence_name(const std::vector<std::string>& steps,

@@ -144,14 +144,7 @@ std::vector<SequenceSpec> needed_configurations(const Protocol& proto) {
            std::any_of(out.begin(), out.end(), same);
   };
   for (const auto& steps : proto.step_sets_needed()) {
-    const std::size_t n = steps.size();
-    const std::size_t patterns =
-        proto.readout == Readout::destructive ? (std::size_t{1} << (n - 1)) : 1;
-    for (std::size_t p = 0; p < patterns; ++p) {
-      std::vector<int> dark(n, +1);
-      // The reader's order: "++", "+-", "-+", "--" over the non-final steps.
-      for (std::size_t k = 0; k + 1 < n; ++k)
-        if ((p >> (n - 2 - k)) & 1u) dark[k] = -1;
+    for (const auto& dark : dark_patterns(steps.size(), proto.readout)) {
       if (covered(steps, dark)) continue;
       SequenceSpec s;
       s.name = generated_sequence_name(steps, dark, proto.readout);

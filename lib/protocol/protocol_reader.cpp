@@ -565,14 +565,7 @@ bool same_run(const SequenceSpec& a, const std::vector<std::string>& steps,
 void add_generated_sequences(const Reader& r, Protocol& proto) {
   const std::size_t listed = proto.sequences.size();
   for (const auto& steps : proto.step_sets_needed()) {
-    const std::size_t n = steps.size();
-    const std::size_t patterns =
-        proto.readout == Readout::destructive ? (std::size_t{1} << (n - 1)) : 1;
-    for (std::size_t p = 0; p < patterns; ++p) {
-      std::vector<int> dark(n, +1);
-      // Pattern bits from the first step: "++", "+-", "-+", "--" (plus first).
-      for (std::size_t k = 0; k + 1 < n; ++k)
-        if ((p >> (n - 2 - k)) & 1u) dark[k] = -1;
+    for (const auto& dark : dark_patterns(steps.size(), proto.readout)) {
       const bool covered = std::any_of(proto.sequences.begin(), proto.sequences.end(),
                                        [&](const SequenceSpec& s) {
                                          return same_run(s, steps, dark, proto.readout);

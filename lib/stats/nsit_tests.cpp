@@ -104,14 +104,25 @@ TestResult nsit_score_test(const CellCounts& counts, const LinearFunctional& s) 
   return with_sigma(r);
 }
 
-TestResult barnard_exact_test(long x1, long n1, long x2, long n2) {
+namespace {
+
+// Shared argument checks of the exact unconditional tests, which enumerate all
+// (n1 + 1)(n2 + 1) tables.
+void check_exact_test_counts(const std::string& test, long x1, long n1, long x2, long n2) {
   if (n1 < 1 || n2 < 1 || x1 < 0 || x2 < 0 || x1 > n1 || x2 > n2)
-    throw DomainError("Barnard test: counts (" + std::to_string(x1) + "/" + std::to_string(n1) +
+    throw DomainError(test + " test: counts (" + std::to_string(x1) + "/" + std::to_string(n1) +
                       ", " + std::to_string(x2) + "/" + std::to_string(n2) +
                       ") must satisfy 0 <= x <= n, n >= 1");
   if (static_cast<double>(n1 + 1) * static_cast<double>(n2 + 1) > 4e6)
-    throw UnsupportedError("Barnard exact test: " + std::to_string(n1) + " x " + std::to_string(n2) +
+    throw UnsupportedError(test + " exact test: " + std::to_string(n1) + " x " +
+                           std::to_string(n2) +
                            " shots is too large for the exact enumeration; use the score test");
+}
+
+}  // namespace
+
+TestResult barnard_exact_test(long x1, long n1, long x2, long n2) {
+  check_exact_test_counts("Barnard", x1, n1, x2, n2);
   auto wald = [&](long a, long b) {
     const double p1 = static_cast<double>(a) / n1, p2 = static_cast<double>(b) / n2;
     if (p1 == p2) return 0.0;
@@ -133,13 +144,7 @@ TestResult barnard_exact_test(long x1, long n1, long x2, long n2) {
 }
 
 TestResult boschloo_exact_test(long x1, long n1, long x2, long n2) {
-  if (n1 < 1 || n2 < 1 || x1 < 0 || x2 < 0 || x1 > n1 || x2 > n2)
-    throw DomainError("Boschloo test: counts (" + std::to_string(x1) + "/" + std::to_string(n1) +
-                      ", " + std::to_string(x2) + "/" + std::to_string(n2) +
-                      ") must satisfy 0 <= x <= n, n >= 1");
-  if (static_cast<double>(n1 + 1) * static_cast<double>(n2 + 1) > 4e6)
-    throw UnsupportedError("Boschloo exact test: " + std::to_string(n1) + " x " + std::to_string(n2) +
-                           " shots is too large for the exact enumeration; use the score test");
+  check_exact_test_counts("Boschloo", x1, n1, x2, n2);
   // Fisher's one-sided p-values of every table given its margin s = a + b: the hypergeometric
   // tails P(X1 <= a | s) ("less") and P(X1 >= a | s) ("greater"). The pmf over a comes from
   // the ratio recurrence pmf(a + 1) / pmf(a) = (n1 - a)(s - a) / ((a + 1)(n2 - s + a + 1)),
