@@ -50,27 +50,12 @@ void check_reference_set(const std::function<bool(const json&)>& take, int min_c
     FockEngineOptions opt;
     opt.check_truncation = false;  // the automatic cutoff; the truncation check is tested elsewhere
     const FockEngine engine(state_of(c.at("state")), opt);
-    const MeasurementSequence seq = sequence_of(c);
     auto compare = [&](double ours, double ref) {
       CHECK_CLOSE(ours, ref, tol, 0.0);
       max_diff = std::max(max_diff, std::abs(ours - ref));
       ++compared;
     };
-    for (const json& p : c.at("probabilities")) {
-      const auto sub = subsequence(seq, p.at("steps").get<std::vector<int>>());
-      INFO("steps " << p.at("steps").dump() << " outcomes " << p.at("outcomes").get<std::string>());
-      compare(engine.probability_value(sub, parse_outcomes(p.at("outcomes"))), p.at("p"));
-    }
-    for (const auto& [key, value] : c.at("correlators").items()) {
-      INFO("correlator C" << key);
-      compare(engine.correlator_value(subsequence(seq, steps_of_key(key))), value.get<double>());
-    }
-    compare(engine.last_average(seq).value, c.at("last_average"));
-    if (c.contains("K3")) compare(leggett_garg3(engine, seq).K, c.at("K3"));
-    for (const json& s : c.at("nsit")) {
-      INFO("NSIT " << s.at("from").get<int>() << " -> " << s.at("to").get<int>());
-      compare(nsit_signalling(engine, seq, s.at("from"), s.at("to")), s.at("S"));
-    }
+    macroreal::testing::compare_reference_case(engine, c, compare);
   }
   WARN("max |Fock engine - QuTiP| = " << max_diff << " over " << compared << " values");
   CHECK(max_diff <= tol);

@@ -61,26 +61,11 @@ TEST_CASE("WeylEngine: agrees with QuTiP in a truncated Fock space", "[phase_spa
     WeylEngineOptions options;
     options.max_hermite_nodes = 384;
     const WeylEngine engine(state_of(c.at("state")), options);
-    const MeasurementSequence seq = sequence_of(c);
     auto compare = [&](double ours, double ref) {
       CHECK_CLOSE(ours, ref, tol, 0.0);
       max_diff = std::max(max_diff, std::abs(ours - ref));
     };
-    for (const json& p : c.at("probabilities")) {
-      const auto sub = subsequence(seq, p.at("steps").get<std::vector<int>>());
-      INFO("steps " << p.at("steps").dump() << " outcomes " << p.at("outcomes").get<std::string>());
-      compare(engine.probability_value(sub, parse_outcomes(p.at("outcomes"))), p.at("p"));
-    }
-    for (const auto& [key, value] : c.at("correlators").items()) {
-      INFO("correlator C" << key);
-      compare(engine.correlator_value(subsequence(seq, steps_of_key(key))), value.get<double>());
-    }
-    compare(engine.last_average(seq).value, c.at("last_average"));
-    if (c.contains("K3")) compare(leggett_garg3(engine, seq).K, c.at("K3"));
-    for (const json& s : c.at("nsit")) {
-      INFO("NSIT " << s.at("from").get<int>() << " -> " << s.at("to").get<int>());
-      compare(nsit_signalling(engine, seq, s.at("from"), s.at("to")), s.at("S"));
-    }
+    macroreal::testing::compare_reference_case(engine, c, compare);
   }
   INFO("max |Weyl engine - QuTiP| = " << max_diff);
   CHECK(max_diff <= tol);

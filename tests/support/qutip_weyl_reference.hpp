@@ -9,10 +9,12 @@
 #include <string>
 #include <vector>
 
+#include <catch2/catch.hpp>
 #include <nlohmann/json.hpp>
 
 #include "phase_space/sequence.hpp"
 #include "phase_space/state.hpp"
+#include "phase_space/temporal_tests.hpp"
 
 namespace macroreal::testing {
 
@@ -71,6 +73,31 @@ inline ReferenceFile qutip_weyl_reference_file() {
       std::filesystem::path(MACROREAL_SOURCE_DIR) / "tests" / "reference" / "qutip_weyl_reference.json";
   if (std::filesystem::exists(regenerated)) return {regenerated, true};
   return {committed, false};
+}
+
+// Every value of one reference case (probabilities, correlators, last average, K3, NSIT S)
+// computed by `engine` (either engine: same interface) and handed to compare(ours, reference),
+// with Catch2 INFO context naming the value. One loop for both engines' reference tests.
+template <class Engine, class Compare>
+void compare_reference_case(const Engine& engine, const nlohmann::json& c, Compare&& compare) {
+  const MeasurementSequence seq = sequence_of(c);
+  for (const nlohmann::json& p : c.at("probabilities")) {
+    const auto sub = subsequence(seq, p.at("steps").get<std::vector<int>>());
+    INFO("steps " << p.at("steps").dump() << " outcomes " << p.at("outcomes").get<std::string>());
+    compare(engine.probability_value(sub, parse_outcomes(p.at("outcomes"))), p.at("p").get<double>());
+  }
+  for (const auto& item : c.at("correlators").items()) {
+    const std::string& key = item.key();
+    const nlohmann::json& value = item.value();
+    INFO("correlator C" << key);
+    compare(engine.correlator_value(subsequence(seq, steps_of_key(key))), value.get<double>());
+  }
+  compare(engine.last_average(seq).value, c.at("last_average").get<double>());
+  if (c.contains("K3")) compare(leggett_garg3(engine, seq).K, c.at("K3").get<double>());
+  for (const nlohmann::json& s : c.at("nsit")) {
+    INFO("NSIT " << s.at("from").get<int>() << " -> " << s.at("to").get<int>());
+    compare(nsit_signalling(engine, seq, s.at("from"), s.at("to")), s.at("S").get<double>());
+  }
 }
 
 }  // namespace macroreal::testing
