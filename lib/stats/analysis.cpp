@@ -188,6 +188,7 @@ AnalysisResult analyse_campaign(const Protocol& protocol, const CampaignCounts& 
   bo.level = options.level;
   bo.seed = derive_seed(options.seed, 0);
   bo.threads = options.threads;
+  bo.keep_replicates = options.keep_replicates;
   const CountStatistic statistic = estimator_statistic(estimator);
   const BootstrapResult boot = stratified_bootstrap(counts, statistic, bo);
   r.default_interval = to_string(bo.default_method);
@@ -212,6 +213,8 @@ AnalysisResult analyse_campaign(const Protocol& protocol, const CampaignCounts& 
     for (IntervalMethod m : order)
       if (m != bq.default_method) q.intervals.push_back(from_bootstrap(to_string(m).c_str(), bq.interval(m)));
     if (std::isfinite(q.estimate)) add_binomial_intervals(q, infos[i], c, options.level);
+    if (options.keep_replicates && (q.kind == QuantityKind::lg_k || q.kind == QuantityKind::nsit_s))
+      q.bootstrap_replicates = bq.replicates;
     r.estimates.push_back(std::move(q));
   }
   auto quantity_of = [&](QuantityKind kind, int test) -> int {

@@ -42,6 +42,7 @@ struct AnalysisOptions {
   bool model = true;                // compare with the protocol's model when it has a state
   int threads = 0;                  // 0: OpenMP default; results do not depend on it
   std::optional<DriftCheck> drift;  // drift check of the table (drift_check.hpp), if any
+  bool keep_replicates = false;     // keep the bootstrap replicates of every K and S (figures)
   void validate() const;            // DomainError naming the option
 };
 
@@ -63,6 +64,10 @@ struct QuantityEstimate {
   std::vector<IntervalEstimate> intervals;  // every interval computed, default first
   std::string status = "ok";         // estimator / bootstrap status
   std::string note;
+  // Only with AnalysisOptions::keep_replicates, for K (lg_k) and S (nsit_s): the B bootstrap
+  // replicates in replicate order, recentred as in bootstrap.hpp (so the default interval is
+  // computed from exactly these values); NaN entries are replicates that were not finite.
+  std::vector<double> bootstrap_replicates;
 };
 
 struct ModelComparison {             // only when the protocol has a state
