@@ -89,6 +89,14 @@ class RouteProblem {
     return b;
   }
 
+  // The same sequence with other Ramsey phases (the state and the times do not depend on them).
+  static MeasurementSequence with_phases(const MeasurementSequence& seq,
+                                         const std::vector<double>& phis) {
+    MeasurementSequence out = seq;
+    for (std::size_t i = 0; i < out.steps.size(); ++i) out.steps[i].measurement.phase_rad = phis[i];
+    return out;
+  }
+
   // K or S of the quantum model.
   double value(const Built& b, const WeylEngineOptions& opt) const {
     const WeylEngine engine(b.state, opt);
@@ -107,10 +115,9 @@ class RouteProblem {
     constexpr double h = 1.5707963267948966;  // pi / 2
     if (test_ == ReachTest::nsit) {
       const Built b0 = build(x, {0.0, 0.0});
-      const Built b1 = build(x, {0.0, h});
       const WeylEngine e0(b0.state, opt);
       const double re = nsit_signalling(e0, b0.seq, 0, 1);
-      const double im = -nsit_signalling(e0, b1.seq, 0, 1);
+      const double im = -nsit_signalling(e0, with_phases(b0.seq, {0.0, h}), 0, 1);
       return {{0.0, wrap(-std::atan2(im, re))}, std::hypot(re, im)};
     }
     const int pairs[3][2] = {{0, 1}, {1, 2}, {0, 2}};
@@ -124,38 +131,43 @@ class RouteProblem {
           std::vector<double> ph(3, 0.0);
           ph[static_cast<std::size_t>(pairs[q][0])] = si * h;
           ph[static_cast<std::size_t>(pairs[q][1])] = sj * h;
-          const Built b = build(x, ph);
-          v[si][sj] = pair_correlator(engine, b.seq, pairs[q][0], pairs[q][1]);
+          v[si][sj] = pair_correlator(engine, with_phases(ref.seq, ph), pairs[q][0], pairs[q][1]);
         }
       a[q] = cplx((v[0][0] - v[1][1]) / 2.0, -(v[1][0] + v[0][1]) / 2.0);
       bb[q] = cplx((v[0][0] + v[1][1]) / 2.0, (v[1][0] - v[0][1]) / 2.0);
     }
-    auto e = [](double p) { return cplx(std::cos(p), std::sin(p)); };
-    auto k_of = [&](double pa, double pb, double pc) {
-      return (a[0] * e(pa + pb) + bb[0] * e(pb - pa)).real() +
-             (a[1] * e(pb + pc) + bb[1] * e(pc - pb)).real() -
-             (a[2] * e(pa + pc) + bb[2] * e(pc - pa)).real();
+    // The ascent runs on the unit numbers u = e^{i phi} (no trigonometry in the loop: it was
+    // most of a map's time): the best phi for a coefficient A is -arg A, i.e. u = conj(A)/|A|.
+    auto unit_of = [](cplx z) {
+      const double m = std::sqrt(std::norm(z));
+      return m > 0.0 ? std::conj(z) / m : cplx(1.0, 0.0);  // arg 0 = 0 gives phi = 0
     };
+    auto k_of = [&](cplx ua, cplx ub, cplx uc) {
+      return (a[0] * ua * ub + bb[0] * ub * std::conj(ua)).real() +
+             (a[1] * ub * uc + bb[1] * uc * std::conj(ub)).real() -
+             (a[2] * ua * uc + bb[2] * uc * std::conj(ua)).real();
+    };
+    const double r = std::sqrt(0.5);
     double best = -kInf;
     std::vector<double> best_ph(3, 0.0);
     for (int s = 0; s < 8; ++s) {
-      double pa = (s % 2) * 2 * h, pb = ((s / 2) % 2) * 2 * h + h / 2, pc = (s / 4) * 2 * h + h;
-      double cur = k_of(pa, pb, pc);
+      // Starts phi_A in {0, pi}, phi_B in {pi/4, 5 pi/4}, phi_C in {pi/2, 3 pi/2}.
+      cplx ua = (s % 2) ? cplx(-1.0, 0.0) : cplx(1.0, 0.0);
+      cplx ub = ((s / 2) % 2) ? cplx(-r, -r) : cplx(r, r);
+      cplx uc = (s / 4) ? cplx(0.0, -1.0) : cplx(0.0, 1.0);
+      double cur = k_of(ua, ub, uc);
       for (int it = 0; it < 100; ++it) {
-        const cplx A = a[0] * e(pb) - a[2] * e(pc) + std::conj(bb[0] * e(pb) - bb[2] * e(pc));
-        pa = -std::arg(A);
-        const cplx B = a[0] * e(pa) + bb[0] * e(-pa) + a[1] * e(pc) + std::conj(bb[1] * e(pc));
-        pb = -std::arg(B);
-        const cplx C = a[1] * e(pb) + bb[1] * e(-pb) - a[2] * e(pa) - bb[2] * e(-pa);
-        pc = -std::arg(C);
-        const double nxt = k_of(pa, pb, pc);
+        ua = unit_of(a[0] * ub - a[2] * uc + std::conj(bb[0] * ub - bb[2] * uc));
+        ub = unit_of(a[0] * ua + bb[0] * std::conj(ua) + a[1] * uc + std::conj(bb[1] * uc));
+        uc = unit_of(a[1] * ub + bb[1] * std::conj(ub) - a[2] * ua - bb[2] * std::conj(ua));
+        const double nxt = k_of(ua, ub, uc);
         const bool done = nxt - cur <= 1e-14;
         cur = nxt;
         if (done) break;
       }
       if (cur > best + 1e-13) {
         best = cur;
-        best_ph = {wrap(pa), wrap(pb), wrap(pc)};
+        best_ph = {wrap(std::arg(ua)), wrap(std::arg(ub)), wrap(std::arg(uc))};
       }
     }
     return {best_ph, best};
@@ -214,8 +226,16 @@ CellModel cell_model(const Built& b, ReachTest test, bool destructive,
   return cm;
 }
 
+// A warm start for one route's search: the start and the search options to use with it, and
+// where to put the optimum found.
+struct WarmStart {
+  const std::vector<double>* start = nullptr;  // null: options.search from the default start
+  const SearchOptions* search = nullptr;
+  std::vector<double>* optimum = nullptr;      // null: not wanted
+};
+
 RouteResult solve_route(const MappedDevice& dev, const ReachOptions& opt, bool prepared,
-                        double z_total, int prep_index = 0) {
+                        double z_total, int prep_index = 0, WarmStart warm = {}) {
   const RouteProblem problem(dev, opt.test, prepared, prep_index);
   RouteResult r;
   r.preparation_multiple = prepared ? dev.preparations.at(static_cast<std::size_t>(prep_index)).multiple : 0;
@@ -244,7 +264,10 @@ RouteResult solve_route(const MappedDevice& dev, const ReachOptions& opt, bool p
       return std::numeric_limits<double>::quiet_NaN();
     }
   };
-  const SearchResult sr = maximise(sp, opt.search);
+  const bool warm_started = warm.start && warm.search && warm.start->size() == d;
+  if (warm_started) sp.start = *warm.start;
+  const SearchResult sr = maximise(sp, warm_started ? *warm.search : opt.search);
+  if (warm.optimum) *warm.optimum = sr.x;
   r.evaluations = sr.evaluations;
   r.search_method = sr.method + "; Ramsey phases by coordinate ascent on the exact phase form";
   const auto phases = problem.inner_phases(sr.x, opt.engine).first;
@@ -341,17 +364,32 @@ struct Routes {
   double seconds = kInf;
 };
 
-Routes solve_all(const DevicePoint& point, const ReachOptions& opt, double z_total) {
+Routes solve_all(const DevicePoint& point, const ReachOptions& opt, double z_total,
+                 RouteOptima* optima = nullptr, const SearchOptions* warm = nullptr) {
   const MappedDevice dev = map_device(point);
   Routes out;
-  if (opt.evaluate_thermal_route || opt.test == ReachTest::nsit)
-    out.routes.push_back(solve_route(dev, opt, false, z_total));
+  std::size_t searched = 0;  // position of the next route in `optima`
+  const bool thermal = opt.evaluate_thermal_route || opt.test == ReachTest::nsit;
+  // Sized once, so that the slots handed out below stay where they are.
+  if (optima) optima->x.resize((thermal ? 1 : 0) + dev.preparations.size());
+  auto warm_for = [&]() {
+    WarmStart w;
+    if (!optima) return w;
+    std::vector<double>& slot = optima->x[searched++];
+    if (!slot.empty()) {
+      w.start = &slot;
+      w.search = warm;
+    }
+    w.optimum = &slot;
+    return w;
+  };
+  if (thermal) out.routes.push_back(solve_route(dev, opt, false, z_total, 0, warm_for()));
   // The post-selected route with each preparation interaction; the shortest time (else the
   // largest effect) is kept.
   RouteResult best;
   bool have = false;
   for (std::size_t k = 0; k < dev.preparations.size(); ++k) {
-    RouteResult r = solve_route(dev, opt, true, z_total, static_cast<int>(k));
+    RouteResult r = solve_route(dev, opt, true, z_total, static_cast<int>(k), warm_for());
     const bool better = !have || r.seconds_needed < best.seconds_needed ||
                         (r.seconds_needed == best.seconds_needed && r.effect > best.effect);
     if (better) {
@@ -378,6 +416,12 @@ double z_of(const ReachOptions& opt) {
 double time_to_conclusive(const DevicePoint& point, const ReachOptions& options) {
   options.validate();
   return solve_all(point, options, z_of(options)).seconds;
+}
+
+double time_to_conclusive_from(const DevicePoint& point, const ReachOptions& options,
+                               const SearchOptions& warm, RouteOptima& optima) {
+  options.validate();
+  return solve_all(point, options, z_of(options), &optima, &warm).seconds;
 }
 
 ReachResult reach(const DevicePoint& point, const ReachOptions& options) {

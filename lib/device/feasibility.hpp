@@ -103,4 +103,17 @@ ReachResult reach(const DevicePoint& point, const ReachOptions& options = {});
 // Only the shortest time to a conclusive test (seconds; infinity when none), for maps.
 double time_to_conclusive(const DevicePoint& point, const ReachOptions& options);
 
+// The optimum of the searched settings of each route at one point (by position: the thermal
+// route when it is evaluated, then the preparations in order), to start the search at a
+// neighbouring point of a map from. An empty entry means "no start".
+struct RouteOptima {
+  std::vector<std::vector<double>> x;
+};
+// time_to_conclusive with warm starts: a route that has a start in `optima` is searched by a
+// local polish from it with `warm` (meant without a global stage) instead of
+// options.search; on return `optima` holds the optima found at this point. The result
+// depends on the start, so a map that uses this fixes the order of its points (reach_map.hpp).
+double time_to_conclusive_from(const DevicePoint& point, const ReachOptions& options,
+                               const SearchOptions& warm, RouteOptima& optima);
+
 }  // namespace macroreal

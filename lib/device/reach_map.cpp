@@ -27,14 +27,18 @@ ReachMap reach_map(const DeviceSpec& spec, const std::string& x_param, const std
   map.ys = spec.ranges.at(y_param).values;
   map.available_s = spec.base.measurement_time_available_h * 3600.0;
   const long nx = static_cast<long>(map.xs.size()), ny = static_cast<long>(map.ys.size());
-  for (long idx = 0; idx < nx * ny; ++idx)
-    if (idx % options.shards == options.shard - 1) {
+  // Whole rows per shard (see the header: a row is one warm-start chain).
+  std::vector<long> rows;
+  for (long j = 0; j < ny; ++j)
+    if (j % options.shards == options.shard - 1) rows.push_back(j);
+  for (long j : rows)
+    for (long i = 0; i < nx; ++i) {
       MapPoint p;
-      p.index = idx;
-      p.i = static_cast<int>(idx % nx);
-      p.j = static_cast<int>(idx / nx);
-      p.x = map.xs[static_cast<std::size_t>(p.i)];
-      p.y = map.ys[static_cast<std::size_t>(p.j)];
+      p.index = j * nx + i;
+      p.i = static_cast<int>(i);
+      p.j = static_cast<int>(j);
+      p.x = map.xs[static_cast<std::size_t>(i)];
+      p.y = map.ys[static_cast<std::size_t>(j)];
       map.points.push_back(p);
     }
   ReachOptions ro = options.reach;
@@ -42,18 +46,33 @@ ReachMap reach_map(const DeviceSpec& spec, const std::string& x_param, const std
   ro.search = options.search;
   ro.evaluate_thermal_route = ro.test == ReachTest::nsit;  // LG: the thermal route never is
   const long n = static_cast<long>(map.points.size());
+  const long nrows = static_cast<long>(rows.size());
   const int threads = options.threads > 0 ? options.threads : omp_get_max_threads();
   std::vector<std::string> errors(static_cast<std::size_t>(n));
 #pragma omp parallel for schedule(dynamic, 1) num_threads(threads)
-  for (long k = 0; k < n; ++k) {
-    MapPoint& p = map.points[static_cast<std::size_t>(k)];
-    DevicePoint q = spec.base;
-    q.set(x_param, p.x);
-    q.set(y_param, p.y);
-    try {
-      p.seconds = time_to_conclusive(q, ro);
-    } catch (const std::exception& e) {
-      errors[static_cast<std::size_t>(k)] = e.what();
+  for (long r = 0; r < nrows; ++r) {
+    RouteOptima optima;  // the chain's memory: optima of the previous point of this row
+    for (long i = 0; i < nx; ++i) {
+      const long k = r * nx + i;
+      MapPoint& p = map.points[static_cast<std::size_t>(k)];
+      DevicePoint q = spec.base;
+      q.set(x_param, p.x);
+      q.set(y_param, p.y);
+      try {
+        if (!options.warm_start) {
+          p.seconds = time_to_conclusive(q, ro);
+        } else if (optima.x.empty()) {
+          // A row's first point: the single run's full search (its optima start the chain).
+          ReachOptions first = ro;
+          first.search = options.reach.search;
+          p.seconds = time_to_conclusive_from(q, first, options.warm_search, optima);
+        } else {
+          p.seconds = time_to_conclusive_from(q, ro, options.warm_search, optima);
+        }
+      } catch (const std::exception& e) {
+        errors[static_cast<std::size_t>(k)] = e.what();
+        optima.x.clear();  // the next point starts afresh
+      }
     }
   }
   for (long k = 0; k < n; ++k)

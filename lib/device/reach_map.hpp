@@ -1,8 +1,19 @@
 // A grid of time-to-conclusive over two device parameters given as ranges in the device file
-// (`macroreal reach --map P1,P2`). Points are independent and computed with OpenMP; each point
-// depends only on its parameters (fixed seeds), so the result does not depend on the number of
-// threads. A shard k of N (1 <= k <= N) computes the points with index % N == k - 1 (index =
-// j * nx + i, i over P1, j over P2); merging all shards gives the same grid as one run.
+// (`macroreal reach --map P1,P2`). Index = j * nx + i (i over P1, j over P2).
+//
+// Speed (issue 8: 50 x 50 on 2 threads <= 60 s): each row j (fixed P2) is a chain along P1.
+// Its first point gets the single run's full search (MapOptions::reach.search: DIRECT-L and
+// four polishes, 700 evaluations per route); every later point starts a local polish
+// (MapOptions::warm_search, no global stage) from the optima of its left neighbour, whose
+// settings (rotation angles, preparation phase) move little from one grid point to the next.
+// A chain can also carry a better optimum along than an independent global search finds at a
+// point: the landscape over the four settings has several basins. Rows are computed in parallel with OpenMP. A point
+// therefore depends on its row's earlier points, never on other rows, the thread count or the
+// shard: a shard k of N (1 <= k <= N) computes the whole rows with j % N == k - 1, and merging
+// all shards gives the same grid as one run (so N > the number of rows leaves shards empty).
+// tests/device/test_reach_map_speed.cpp checks the warm-started map against the full
+// single-run search point by point. warm_start = false gives independent points (each with
+// MapOptions::search).
 #pragma once
 
 #include <string>
@@ -29,10 +40,12 @@ struct ReachMap {
 
 struct MapOptions {
   ReachOptions reach;  // elasticities are switched off for maps
-  // The per-point search of a map is lighter than a single run's (ReachOptions::search): the
-  // map shows where the feasibility boundary lies, and the single run at a chosen point gives
-  // the optimised figures.
+  // The per-point search when warm_start is false (lighter than a single run's
+  // ReachOptions::search; the previous method, kept as the benchmark's reference).
   SearchOptions search{2, 150, 1e-5, 1, GlobalStage::direct_l, LocalPolish::bobyqa, 0.5};
+  // From a neighbour's optimum: one BOBYQA polish, then the final polish from the best point.
+  SearchOptions warm_search{1, 60, 1e-5, 1, GlobalStage::none, LocalPolish::bobyqa, 0.0};
+  bool warm_start = true;
   int shard = 1, shards = 1;
   int threads = 0;     // 0: OpenMP default
 };
