@@ -16,6 +16,7 @@
 #include "protocol/protocol_reader.hpp"
 #include "report/analysis_report.hpp"
 #include "stats/analysis.hpp"
+#include "stats/analysis_check.hpp"
 #include "stats/runs_input.hpp"
 
 namespace macroreal::apps {
@@ -34,13 +35,18 @@ struct AnalyseArgs {
   std::optional<double> margin;
   bool counts = false;
   std::string output = "-";
+  std::vector<std::string> check;  // tests whose verdict sets the exit code
 };
 
 int run_analyse(const AnalyseArgs& args) {
   ProtocolReadOptions read;
   read.generate_needed_sequences = true;  // the data may name the generated sequences
   read.require_state = false;
-  const Protocol proto = read_protocol(args.protocol, read);
+  if (args.protocol == "-" && args.runs == "-")
+    throw InputError("", "--protocol", "the runs already read standard input; give the protocol as a file");
+  const Protocol proto = args.protocol == "-"
+                             ? parse_protocol_text(read_input("-"), input_label("-"), read)
+                             : read_protocol(args.protocol, read);
 
   OutcomeTableOptions table;
   table.bad_rows = parse_bad_row_policy(args.on_bad_row);
@@ -68,7 +74,12 @@ int run_analyse(const AnalyseArgs& args) {
     std::ofstream out(args.output, std::ios::binary);
     if (!(out << text) || !out.flush()) throw InputError(args.output, "", "cannot write the output file");
   }
-  return 0;
+  if (!args.check.empty()) {
+    const AnalysisCheck check = check_analysis(result, args.check);
+    std::cerr << "analyse --check: " << check.summary << "\n";
+    if (!check.passed) return kExitCheckFailed;
+  }
+  return kExitOk;
 }
 
 }  // namespace
@@ -83,7 +94,7 @@ void register_analyse(CLI::App& app) {
   cmd->add_option("runs", args->runs,
                   "outcome table (CSV, one row per shot) or counts JSON (macroreal-counts/1); - reads stdin")
       ->required();
-  cmd->add_option("--protocol", args->protocol, "protocol file (macroreal-protocol/1)")->required();
+  cmd->add_option("--protocol", args->protocol, "protocol file (macroreal-protocol/1); - reads stdin")->required();
   cmd->add_flag("--json", args->json, "write JSON (DESIGN.md section 8) instead of the text report");
   cmd->add_option("--level", args->level, "two-sided confidence level of the intervals (default 0.95)")
       ->check(CLI::Range(0.5, 0.999999));
@@ -99,6 +110,12 @@ void register_analyse(CLI::App& app) {
   cmd->add_option("--margin", args->margin,
                   "NSIT equivalence margin for TOST, for tests without their own \"margin\"");
   cmd->add_flag("--counts", args->counts, "RUNS is a counts JSON whatever its name or content");
+  cmd->add_option("--check", args->check,
+                  "exit with code 1 unless the named tests reject their null hypothesis at alpha = "
+                  "1 - level (primary p-value after Holm's adjustment over all tests; summary on "
+                  "stderr): lg, nsit, all or a test label such as \"NSIT A->B\"; repeatable")
+      ->type_name("lg|nsit|all|LABEL")
+      ->allow_extra_args(false);  // one value per --check, so a positional after it stays one
   cmd->add_option("-o,--output", args->output, "write to FILE instead of standard output (- : stdout)")
       ->type_name("FILE|-");
   cmd->footer(
@@ -106,8 +123,9 @@ void register_analyse(CLI::App& app) {
       "  macroreal analyse example_runs/lg3_thermal_runs.csv --protocol protocols/lg3_thermal.json\n"
       "  macroreal analyse counts.json --protocol p.json --json --seed 7 --bootstrap 20000\n"
       "  zcat runs.csv.gz | macroreal analyse - --protocol p.json --on-bad-row skip\n"
-      "Exit codes: 0 success, 2 bad input (the message names the file, the line and column or the "
-      "JSON path, and the field).");
+      "  macroreal analyse runs.csv --protocol p.json --level 0.99 --check lg && echo \"LG violated\"\n"
+      "Exit codes: 0 success, 1 with --check: a test does not reach the level, 2 bad input (the\n"
+      "message names the file, the line and column or the JSON path, and the field).");
   cmd->callback([args] { set_action([args] { return run_analyse(*args); }); });
 }
 

@@ -33,7 +33,8 @@ struct CalibrateArgs {
 };
 
 int run_calibrate(const CalibrateArgs& a) {
-  const CountHistograms h = read_calibration_counts(a.counts);
+  const CountHistograms h = a.counts == "-" ? parse_calibration_counts(read_input("-"), input_label("-"))
+                                            : read_calibration_counts(a.counts);
   CalibrationOptions o;
   o.seed = a.seed;
   o.bootstrap_replicates = a.bootstrap;
@@ -62,7 +63,7 @@ void register_calibrate(CLI::App& app) {
       "Photon-count calibration of a fluorescence readout: dark and bright rates (two-Poisson "
       "mixture fit over labelled and unlabelled shots), goodness of fit, the threshold, the two "
       "misassignment probabilities with bootstrap intervals, and error versus window length");
-  cmd->add_option("counts", args->counts, "calibration counts CSV: label,count[,window_s], label dark|bright|unknown")
+  cmd->add_option("counts", args->counts, "calibration counts CSV: label,count[,window_s], label dark|bright|unknown; - reads stdin")
       ->required();
   cmd->add_flag("--json", args->json, "write one JSON object (a valid calibration file plus fit diagnostics)");
   cmd->add_option("-o,--output", args->output, "write the report to FILE instead of standard output (- : stdout)")

@@ -5,6 +5,7 @@
 #pragma once
 
 #include <functional>
+#include <string>
 
 #include <CLI/CLI.hpp>
 
@@ -24,5 +25,19 @@ struct CommandRegistration {
 
 void register_all(CLI::App& app);
 int run_selected(CLI::App& app);
+
+// Command-line conventions shared by every command: "-" names standard input (read_input)
+// or standard output (write_output); a file that cannot be read or written is an InputError
+// naming it (exit code 2).
+std::string read_input(const std::string& path);
+void write_output(const std::string& path, const std::string& text);
+// The label a report prints for an input: "<stdin>" for "-", else the path.
+std::string input_label(const std::string& path);
+
+// Exit codes of every command (main() maps the typed errors to kExitBadInput).
+inline constexpr int kExitOk = 0;
+inline constexpr int kExitCheckFailed = 1;  // a check the user asked for (e.g. --check) failed
+inline constexpr int kExitBadInput = 2;
+inline constexpr int kExitInternal = 3;
 
 }  // namespace macroreal::apps

@@ -85,6 +85,11 @@ int run_optimise(const OptimiseArgs& args) {
   const OptimisationResult r = optimise_settings(protocol, original, o);
 
   const std::string report = args.json ? optimisation_json_text(r) : optimisation_text(r);
+  if (args.output == "-") {  // the protocol takes standard output, the report goes to stderr
+    std::cerr << report << std::flush;
+    write_output("-", optimised_protocol_text(r));
+    return kExitOk;
+  }
   if (!args.output.empty()) write_file(args.output, optimised_protocol_text(r));
   std::cout << report;
   if (!args.output.empty() && !args.json)
@@ -127,8 +132,10 @@ void register_optimise(CLI::App& app) {
   cmd->add_option("--max-evaluations", args->max_evaluations, "objective evaluations (default 20000)");
   cmd->add_option("--seed", args->seed, "seed of the random starts (default 1)");
   cmd->add_flag("--json", args->json, "write one JSON object (figures, settings, tolerance, protocol)");
-  cmd->add_option("-o,--output", args->output, "write the optimised protocol file to FILE")
-      ->type_name("FILE");
+  cmd->add_option("-o,--output", args->output,
+                  "write the optimised protocol file to FILE (- : standard output, the report then "
+                  "goes to stderr)")
+      ->type_name("FILE|-");
   cmd->footer(
       "Examples:\n"
       "  macroreal optimise protocols/lg3_thermal.json --objective significance --budget-shots 20000 -o best.json\n"

@@ -74,7 +74,9 @@ int run_plan(const PlanArgs& args) {
   ProtocolReadOptions read;
   read.generate_needed_sequences = true;
   read.require_state = true;
-  const Protocol protocol = read_protocol(args.protocol, read);
+  const Protocol protocol = args.protocol == "-"
+                                ? parse_protocol_text(read_input("-"), input_label("-"), read)
+                                : read_protocol(args.protocol, read);
   PlanOptions options;
   options.alpha = args.alpha;
   options.power = args.power;
@@ -107,8 +109,9 @@ int run_plan(const PlanArgs& args) {
   const std::string text = args.json ? plan_json_text(plan, verification) : plan_text(plan, verification);
   if (!args.power_curve.empty() && plan.feasible) write_file(args.power_curve, power_curve_csv(plan));
   if (!args.allocation_out.empty() && plan.feasible)
-    write_file(args.allocation_out, allocation_file_text(plan_allocation(plan), protocol));
-  std::cout << text << std::flush;
+    write_output(args.allocation_out, allocation_file_text(plan_allocation(plan), protocol));
+  // With -o - the allocation file takes standard output and the report goes to stderr.
+  (args.allocation_out == "-" ? std::cerr : std::cout) << text << std::flush;
   return plan.feasible ? 0 : 1;
 }
 
@@ -120,7 +123,7 @@ void register_plan(CLI::App& app) {
       "plan",
       "Shots per sequence, total shots and lab hours for a test to reach level alpha with the "
       "given power under the protocol's model (least lab time), with an optional Monte Carlo check");
-  cmd->add_option("protocol", args->protocol, "protocol file with a model (macroreal-protocol/1)")->required();
+  cmd->add_option("protocol", args->protocol, "protocol file with a model (macroreal-protocol/1); - reads stdin")->required();
   cmd->add_option("--alpha", args->alpha, "level of the test (default 0.05)");
   cmd->add_option("--power", args->power, "target power (default 0.8)");
   cmd->add_option("--test", args->test,
@@ -143,8 +146,9 @@ void register_plan(CLI::App& app) {
   cmd->add_option("--power-curve", args->power_curve, "write power against total shots as CSV")
       ->type_name("FILE.csv");
   cmd->add_option("-o,--output", args->allocation_out,
-                  "write the allocation file (macroreal-allocation/1) for simulate --allocation")
-      ->type_name("FILE.json");
+                  "write the allocation file (macroreal-allocation/1) for simulate --allocation "
+                  "(- : standard output, the report then goes to stderr)")
+      ->type_name("FILE.json|-");
   cmd->add_flag("--json", args->json, "print one JSON object instead of the text report");
   cmd->footer(
       "Examples:\n"

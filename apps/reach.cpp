@@ -31,6 +31,7 @@ struct ReachArgs {
   std::vector<std::string> merge;
   std::string output = "-";
   int threads = 0;
+  bool check = false;
 };
 
 std::string slurp(const std::string& path) {
@@ -58,13 +59,15 @@ int run_reach(const ReachArgs& a) {
     return 0;
   }
   if (a.device.empty()) throw InputError("", "DEVICE", "a device file is required (or --merge)");
-  const DeviceSpec spec = read_device(a.device);
+  const DeviceSpec spec =
+      a.device == "-" ? parse_device_text(read_input("-"), input_label("-")) : read_device(a.device);
   ReachOptions opt;
   opt.test = parse_reach_test(a.test);
   opt.sigma = a.sigma;
   opt.power = a.power;
   opt.validate();
   if (!a.map.empty()) {
+    if (a.check) throw InputError("", "--check", "judges one device point, not a --map");
     const auto comma = a.map.find(',');
     if (comma == std::string::npos)
       throw InputError("", "--map", "give two parameters as P1,P2");
@@ -89,7 +92,11 @@ int run_reach(const ReachArgs& a) {
   if (!a.shard.empty()) throw InputError("", "--shard", "only with --map");
   const ReachResult r = reach(spec.base, opt);
   emit(a.json ? reach_json_text(r, spec) : reach_text(r, spec), a.output);
-  return 0;
+  if (a.check && !r.conclusive) {
+    std::cerr << "reach --check: no conclusive test within the available time\n";
+    return kExitCheckFailed;
+  }
+  return kExitOk;
 }
 
 }  // namespace
@@ -101,7 +108,7 @@ void register_reach(CLI::App& app) {
       "Feasibility of a mechanical-sensor experiment: from the device's physical parameters, the "
       "best K (or |S|), the lab hours to a conclusive test, the limiting factor and whether a "
       "classical model explains the result");
-  cmd->add_option("device", args->device, "device file (macroreal-device/1)");
+  cmd->add_option("device", args->device, "device file (macroreal-device/1); - reads stdin");
   cmd->add_option("--test", args->test, "lg (Leggett-Garg K_3, default) or nsit (A -> B)")
       ->check(CLI::IsMember({"lg", "nsit"}));
   cmd->add_option("--sigma", args->sigma, "required significance in standard errors (default 5)");
@@ -116,6 +123,8 @@ void register_reach(CLI::App& app) {
   cmd->add_option("--merge", args->merge, "join map part files into the final CSV")
       ->type_name("PART...");
   cmd->add_option("--threads", args->threads, "OpenMP threads for --map (default: all)");
+  cmd->add_flag("--check", args->check,
+                "exit with code 1 when no conclusive test fits in the device's available hours");
   cmd->add_option("-o,--output", args->output, "write to FILE instead of standard output")
       ->type_name("FILE|-");
   cmd->footer(
@@ -126,7 +135,9 @@ void register_reach(CLI::App& app) {
       "--map bath_temperature_k,coupling_g_over_2pi_hz -o map.csv\n"
       "  macroreal reach dev.json --map quality_factor,qubit_t2_s --shard 2/8 -o part2.csv\n"
       "  macroreal reach --merge part1.csv part2.csv ... -o map.csv\n"
-      "Exit codes: 0 success, 2 bad input (the message names the file and the field).");
+      "  macroreal reach dev.json --check || echo \"not conclusive in the time available\"\n"
+      "Exit codes: 0 success, 1 with --check: no conclusive test within the available time,\n"
+      "2 bad input (the message names the file and the field).");
   cmd->callback([args] { set_action([args] { return run_reach(*args); }); });
 }
 
