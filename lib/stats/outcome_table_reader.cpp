@@ -1,10 +1,12 @@
 // Streaming CSV outcome tables and counts JSON into CampaignCounts (see the header).
 //
 // Speed: the file is read in blocks of options.block_bytes with fread; complete lines are
-// parsed in place (memchr for line ends and commas, std::from_chars for numbers), so a row
-// costs no allocation. Sequence names are looked up in a small open-addressing hash table
-// over string_view. A shot's path through its sequence is coded as (1 << length) | bits
-// (bit = 1 for bright, first step most significant) and mapped to its cell by a table.
+// parsed in place (SSE2 masks of the 64 bytes from each line's start for line ends and
+// commas; time_s by the exact decimal parsers of decimal_field.hpp, std::from_chars for
+// the forms they do not take), so a row costs no allocation. Sequence names are looked up
+// in a small open-addressing hash table over string_view. A shot's path through its
+// sequence is coded as (1 << length) | bits (bit = 1 for bright, first step most
+// significant) and mapped to its cell by a table.
 #include "stats/outcome_table_reader.hpp"
 
 #include <algorithm>
@@ -24,6 +26,7 @@
 #endif
 
 #include "core/error.hpp"
+#include "stats/decimal_field.hpp"
 
 namespace macroreal {
 
@@ -36,6 +39,11 @@ BadRowPolicy parse_bad_row_policy(const std::string& s) {
 }
 
 namespace {
+
+using detail::Decimal;
+using detail::eight_digits;
+using detail::parse_time;
+using detail::parse_time_right_aligned;
 
 constexpr int kMaxSteps = 20;
 // Every buffer handed to CsvParser::lines has this many readable bytes after its end, with
@@ -188,93 +196,6 @@ int parse_result(std::string_view f, const std::optional<double>& threshold) {
   return static_cast<double>(v) <= *threshold ? 0 : 1;
 }
 
-// A finite decimal number. Fast path: at most 15 digits with an optional point, kept as
-// mantissa and fraction digits; `approx` = mantissa * 10^-fraction (within 2^-52 relative
-// of the value) orders the rows, and exact() gives mantissa / 10^fraction, both exact
-// doubles, so the quotient is correctly rounded (Clinger, PLDI 1990), the same double
-// std::from_chars gives. The division is only done for the first and last time of each
-// sequence. Anything else goes to std::from_chars and is exact at once (fraction = -1).
-struct Decimal {
-  double approx = 0.0;
-  std::uint64_t mantissa = 0;
-  int fraction = -1;
-  bool negative = false;
-
-  double exact() const {
-    static constexpr double kPow10[16] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
-                                          1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
-    if (fraction < 0) return approx;
-    const double t = static_cast<double>(mantissa) / kPow10[fraction];
-    return negative ? -t : t;
-  }
-};
-
-// Up to 8 ASCII digits at p (n in 1..8) by word arithmetic; false if one is not a digit.
-// Leading '0' bytes pad the word to 8 digits; the digit test and the combination are the
-// well-known SWAR steps (e.g. Lemire, "Number parsing at a gigabyte per second", Softw.
-// Pract. Exp. 51:1700 (2021)).
-[[gnu::always_inline]] inline bool eight_digits(const char* p, std::size_t n, std::uint64_t& value) {
-  // n in 1..8. Shifting the n digits to the top drops the bytes after them, so the word
-  // needs no mask; the leading bytes are filled with '0' (no branch for n = 8).
-  std::uint64_t w;
-  std::memcpy(&w, p, 8);
-  if constexpr (std::endian::native == std::endian::big) w = __builtin_bswap64(w);
-  w = (w << (8 * (8 - n))) | ((0x3030303030303030ull >> (8 * n - 1)) >> 1);
-  if (((w & 0xF0F0F0F0F0F0F0F0ull) | (((w + 0x0606060606060606ull) & 0xF0F0F0F0F0F0F0F0ull) >> 4)) !=
-      0x3333333333333333ull)
-    return false;
-  w = (w & 0x0F0F0F0F0F0F0F0Full) * 2561 >> 8;
-  w = (w & 0x00FF00FF00FF00FFull) * 6553601 >> 16;
-  value = (w & 0x0000FFFF0000FFFFull) * 42949672960001ull >> 32;
-  return true;
-}
-
-// `f` must have 16 readable bytes from its start and 8 after its end.
-[[gnu::always_inline]] inline bool parse_time(std::string_view f, Decimal& d) {
-  static constexpr double kInvPow10[16] = {1e0,  1e-1, 1e-2,  1e-3,  1e-4,  1e-5,  1e-6,  1e-7,
-                                           1e-8, 1e-9, 1e-10, 1e-11, 1e-12, 1e-13, 1e-14, 1e-15};
-  static constexpr std::uint64_t kPow10i[9] = {1,      10,      100,      1000,     10000,
-                                               100000, 1000000, 10000000, 100000000};
-  const char* p = f.data();
-  std::size_t n = f.size();
-  const bool negative = n > 0 && *p == '-';
-  if (negative) {
-    ++p;
-    --n;
-  }
-  // Fast path: [int digits <= 8][.[fraction digits <= 8]], 1 to 15 digits in all.
-  if (n > 0 && n <= 17) {
-    // The '.' among the first n <= 17 bytes: one 16-byte compare (the padding after every
-    // buffer makes the bytes after the field readable) instead of a memchr call per row.
-    const char* dot = nullptr;
-#if defined(__SSE2__)
-    {
-      const __m128i v = _mm_loadu_si128(reinterpret_cast<const __m128i*>(p));
-      std::uint32_t m = static_cast<std::uint32_t>(_mm_movemask_epi8(_mm_cmpeq_epi8(v, _mm_set1_epi8('.'))));
-      if (n < 16) m &= (std::uint32_t{1} << n) - 1;
-      if (m != 0) dot = p + __builtin_ctz(m);
-      else if (n > 16 && p[16] == '.') dot = p + 16;
-    }
-#else
-    dot = static_cast<const char*>(std::memchr(p, '.', n));
-#endif
-    const std::size_t ni = dot ? static_cast<std::size_t>(dot - p) : n;
-    const std::size_t nf = dot ? n - ni - 1 : 0;
-    std::uint64_t a = 0, b = 0;
-    if (ni <= 8 && nf <= 8 && ni + nf >= 1 && ni + nf <= 15 && (ni == 0 || eight_digits(p, ni, a)) &&
-        (nf == 0 || eight_digits(dot + 1, nf, b))) {
-      const std::uint64_t m = a * kPow10i[nf] + b;
-      const double approx = static_cast<double>(m) * kInvPow10[nf];
-      d = {negative ? -approx : approx, m, static_cast<int>(nf), negative};
-      return true;
-    }
-  }
-  double t = 0.0;
-  const auto [ptr, ec] = std::from_chars(f.data(), f.data() + f.size(), t);
-  d = {t, 0, -1, false};
-  return ec == std::errc() && ptr == f.data() + f.size() && std::isfinite(t);
-}
-
 // First and last time of a sequence while reading.
 struct TimeTrack {
   bool any = false;
@@ -321,34 +242,15 @@ class CsvParser {
   // Parses the complete lines in [begin, end) (each ends with '\n', except possibly the
   // last one at the end of input); kPadding readable bytes without '\n' follow `end`.
   void lines(const char* begin, const char* end) {
-    // Separator masks are computed once per 64 bytes: `lo` covers [cb, cb + 64) and `hi`
-    // [cb + 64, cb + 128); a line starting at p sees the 64 bits from p spliced out of both.
-    // Bytes from `end` on have no '\n' and are only read up to end + kPadding.
-    const char* cb = begin;
-    std::uint64_t c_lo = 0, n_lo = 0, c_hi = 0, n_hi = 0;
-    auto load = [end](const char* at, std::uint64_t& c, std::uint64_t& n) {
-      if (at < end) separator_masks(at, c, n);
-      else c = n = 0;
-    };
-    load(cb, c_lo, n_lo);
-    load(cb + 64, c_hi, n_hi);
+    // The separator masks of the 64 bytes from each line's start: one fixed amount of
+    // work per line and no branch on where a line falls among 64-byte blocks (splicing
+    // masks of shared blocks cost a mispredicted branch at every other line). Bytes from
+    // `end` on are only read up to end + kPadding and never end a line.
+    begin_ = begin;
     const char* p = begin;
     while (p < end) {
-      std::size_t o = static_cast<std::size_t>(p - cb);
-      if (o >= 64) {
-        if (o >= 128) {
-          cb = p;
-          load(cb, c_lo, n_lo);
-        } else {
-          cb += 64;
-          c_lo = c_hi;
-          n_lo = n_hi;
-        }
-        load(cb + 64, c_hi, n_hi);
-        o = static_cast<std::size_t>(p - cb);
-      }
-      const std::uint64_t commas = o == 0 ? c_lo : (c_lo >> o) | (c_hi << (64 - o));
-      const std::uint64_t newlines = o == 0 ? n_lo : (n_lo >> o) | (n_hi << (64 - o));
+      std::uint64_t commas, newlines;
+      separator_masks(p, commas, newlines);
       const char* line_end;
       bool short_line = newlines != 0;
       if (short_line) {
@@ -623,7 +525,10 @@ class CsvParser {
     }
     Decimal t;
     const std::size_t time_len = static_cast<std::size_t>(time_e - time_b);
-    if (time_len > 0 && !parse_time(std::string_view(time_b, time_len), t)) return false;
+    // The one-pass parser reads the 16 bytes that end at the field's end.
+    if (time_len > 0 && !(time_e - 16 >= begin_ && parse_time_right_aligned(std::string_view(time_b, time_len), t)) &&
+        !parse_time(std::string_view(time_b, time_len), t))
+      return false;
 
     // Accepted: the same bookkeeping as row().
     auto& rows = result_.counts.rows;
@@ -786,6 +691,7 @@ class CsvParser {
         return reject(row_reason::kMalformedResult, rc,
                       "result '" + std::string(f) +
                           "' is neither dark, bright nor a non-negative integer count");
+      if (f[0] >= '0' && f[0] <= '9') ++result_.photon_count_results;
       bits = (bits << 1) | static_cast<std::size_t>(r);
       ++len;
       if (r == 1 && destructive_) going = false;
@@ -826,6 +732,7 @@ class CsvParser {
   std::vector<std::string> column_names_;
   std::vector<int> result_columns_;  // column of r(k+1)
   std::vector<const char*> field_begin_, field_end_;  // the current row's fields
+  const char* begin_ = nullptr;                       // start of the buffer lines() reads
   FastTable fast_;
 };
 
