@@ -13,6 +13,7 @@
 #include "detection/calibration.hpp"
 #include "detection/calibration_counts.hpp"
 #include "detection/calibration_file.hpp"
+#include "report/calibration_figures.hpp"
 #include "report/calibration_report.hpp"
 
 namespace macroreal::apps {
@@ -30,6 +31,7 @@ struct CalibrateArgs {
   double dark_lifetime_s = 0;
   double window_s = 0;
   std::vector<double> window_table;
+  std::string figures;  // folder for the figures; empty: none
 };
 
 int run_calibrate(const CalibrateArgs& a) {
@@ -43,7 +45,11 @@ int run_calibrate(const CalibrateArgs& a) {
   o.window_s = a.window_s;
   o.table_windows = a.window_table;
   const CalibrationResult r = calibrate_counts(h, o);
-  const std::string text = a.json ? calibration_result_json_text(r) : calibration_result_text(r);
+  std::string text = a.json ? calibration_result_json_text(r) : calibration_result_text(r);
+  if (!a.figures.empty()) {
+    const auto paths = write_figures(calibration_figures(h, r), a.figures);
+    if (!a.json) text += "\n" + figures_written_line(a.figures, paths);
+  }
   if (!a.calibration_out.empty()) write_calibration(to_calibration(r), a.calibration_out);
   if (a.output == "-") {
     std::cout << text << std::flush;
@@ -87,9 +93,14 @@ void register_calibrate(CLI::App& app) {
                   "multiples of it (default 0.25,0.5,1,2,4 times the window)")
       ->delimiter(',')
       ->type_name("LIST");
+  cmd->add_option("--figures", args->figures,
+                  "write SVG and PNG figures into DIR (created if missing): the count histogram with "
+                  "the fitted mixture, its two components and the thresholds")
+      ->type_name("DIR");
   cmd->footer(
       "Examples:\n"
       "  macroreal calibrate example_runs/calibration_counts.csv\n"
+      "  macroreal calibrate example_runs/calibration_counts.csv --figures figs\n"
       "  macroreal calibrate example_runs/calibration_counts.csv --json --write-calibration cal.json\n"
       "  macroreal calibrate counts.csv --dark-lifetime 0.02 --window-table 1e-4,2e-4,4e-4\n"
       "Exit codes: 0 success, 2 bad input (the message names the file, line and field, or why the "

@@ -14,6 +14,7 @@
 #include "core/error.hpp"
 #include "design/setting_optimiser.hpp"
 #include "protocol/protocol_reader.hpp"
+#include "report/optimisation_figures.hpp"
 #include "report/optimisation_report.hpp"
 
 namespace macroreal::apps {
@@ -35,6 +36,7 @@ struct OptimiseArgs {
   unsigned long long seed = 1;
   bool json = false;
   std::string output;
+  std::string figures;  // folder for the figures; empty: none
 };
 
 std::vector<std::string> split_list(const std::string& s) {
@@ -84,7 +86,11 @@ int run_optimise(const OptimiseArgs& args) {
   o.search.seed = args.seed;
   const OptimisationResult r = optimise_settings(protocol, original, o);
 
-  const std::string report = args.json ? optimisation_json_text(r) : optimisation_text(r);
+  std::string report = args.json ? optimisation_json_text(r) : optimisation_text(r);
+  if (!args.figures.empty()) {
+    const auto paths = write_figures(optimisation_figures(r, o), args.figures);
+    if (!args.json) report += "\n" + figures_written_line(args.figures, paths);
+  }
   if (args.output == "-") {  // the protocol takes standard output, the report goes to stderr
     std::cerr << report << std::flush;
     write_output("-", optimised_protocol_text(r));
@@ -136,9 +142,15 @@ void register_optimise(CLI::App& app) {
                   "write the optimised protocol file to FILE (- : standard output, the report then "
                   "goes to stderr)")
       ->type_name("FILE|-");
+  cmd->add_option("--figures", args->figures,
+                  "write SVG and PNG figures into DIR (created if missing): K (or S) of the test "
+                  "against |beta| through the optimised setting, with the optimum, the classical "
+                  "bound and the search limit, and the Wigner function of the chosen input")
+      ->type_name("DIR");
   cmd->footer(
       "Examples:\n"
       "  macroreal optimise protocols/lg3_thermal.json --objective significance --budget-shots 20000 -o best.json\n"
+      "  macroreal optimise protocols/lg3_thermal.json --figures figs\n"
       "  macroreal optimise protocols/lg3_prepared_cat_conclusive.json --objective conclusive --inputs protocol,cat\n"
       "  macroreal optimise noisy.json --robust worst --max-beta 3 --free B.angle,C.angle,phase\n"
       "Exit codes: 0 success, 2 bad input (the message names the file, field or option).");

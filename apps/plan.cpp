@@ -18,6 +18,7 @@
 #include "design/campaign_plan.hpp"
 #include "design/plan_verification.hpp"
 #include "protocol/protocol_reader.hpp"
+#include "report/plan_figures.hpp"
 #include "report/plan_report.hpp"
 
 namespace macroreal::apps {
@@ -40,6 +41,7 @@ struct PlanArgs {
   std::string power_curve;
   std::string allocation_out;
   bool json = false;
+  std::string figures;  // folder for the figures; empty: none
 };
 
 void write_file(const std::string& path, const std::string& text) {
@@ -106,7 +108,11 @@ int run_plan(const PlanArgs& args) {
     verification = verify_plan(plan, v);
     if (shown) std::fprintf(stderr, "\n");
   }
-  const std::string text = args.json ? plan_json_text(plan, verification) : plan_text(plan, verification);
+  std::string text = args.json ? plan_json_text(plan, verification) : plan_text(plan, verification);
+  if (!args.figures.empty() && plan.feasible) {
+    const auto paths = write_figures(plan_figures(plan, verification), args.figures);
+    if (!args.json) text += "\n" + figures_written_line(args.figures, paths);
+  }
   if (!args.power_curve.empty() && plan.feasible) write_file(args.power_curve, power_curve_csv(plan));
   if (!args.allocation_out.empty() && plan.feasible)
     write_output(args.allocation_out, allocation_file_text(plan_allocation(plan), protocol));
@@ -150,10 +156,15 @@ void register_plan(CLI::App& app) {
                   "(- : standard output, the report then goes to stderr)")
       ->type_name("FILE.json|-");
   cmd->add_flag("--json", args->json, "print one JSON object instead of the text report");
+  cmd->add_option("--figures", args->figures,
+                  "write SVG and PNG figures into DIR (created if missing): power against total "
+                  "shots with the planned shots and the requested power (not for an infeasible plan)")
+      ->type_name("DIR");
   cmd->footer(
       "Examples:\n"
       "  macroreal plan protocols/lg3_prepared_cat_conclusive.json --alpha 0.01 --power 0.9 -o shots.json\n"
       "  macroreal plan protocols/lg3_thermal.json --verify 2000 --seed 7 --power-curve curve.csv\n"
+      "  macroreal plan protocols/lg3_thermal.json --figures figs\n"
       "  macroreal plan protocols/lg3_thermal.json --test equivalence --margin 0.05 --json\n"
       "  macroreal plan protocols/nsit_prepared_cat.json --test nsit --alpha 0.01\n"
       "  macroreal plan p.json --cycle-time-s 0.02,0.001 --no-waits\n"

@@ -11,6 +11,7 @@
 #include "core/error.hpp"
 #include "protocol/prediction.hpp"
 #include "protocol/protocol_reader.hpp"
+#include "report/prediction_figures.hpp"
 #include "report/prediction_report.hpp"
 
 namespace macroreal::apps {
@@ -23,6 +24,7 @@ struct PredictArgs {
   std::string output = "-";
   std::string engine = "auto";
   double truncation_tolerance = 0.0;
+  std::string figures;  // folder for the figures; empty: none
 };
 
 int run_predict(const PredictArgs& args) {
@@ -41,7 +43,13 @@ int run_predict(const PredictArgs& args) {
   options.engine_kind = parse_engine_kind(args.engine);
   options.fock.truncation_tolerance = args.truncation_tolerance;
   const PredictionResult result = predict(proto, options);
-  const std::string text = args.json ? prediction_json_text(result) : prediction_text(result);
+  std::string text = args.json ? prediction_json_text(result) : prediction_text(result);
+  if (!args.figures.empty()) {
+    PredictionFigureOptions figures;
+    figures.scan.predict = options;
+    const auto paths = write_figures(prediction_figures(proto, figures), args.figures);
+    if (!args.json) text += "\n" + figures_written_line(args.figures, paths);
+  }
   if (args.output == "-") {
     std::cout << text << std::flush;
   } else {
@@ -74,6 +82,12 @@ void register_predict(CLI::App& app) {
                   "fock otherwise; the output says which ran and why), weyl (exact displacement "
                   "sums) or fock (truncated density matrix)")
       ->check(CLI::IsMember({"weyl", "fock", "auto"}));
+  cmd->add_option("--figures", args->figures,
+                  "write SVG and PNG figures into DIR (created if missing): K or S of every test "
+                  "against |beta| with the classical bound, the optimum and the protocol's setting; "
+                  "S against the direction of the first measurement for NSIT tests; the Wigner "
+                  "function of the input state and of the states a prepared input was made from")
+      ->type_name("DIR");
   cmd->footer(
       "Examples:\n"
       "  macroreal predict protocols/lg3_thermal.json\n"
@@ -81,6 +95,7 @@ void register_predict(CLI::App& app) {
       "  cat my_protocol.json | macroreal predict -\n"
       "  macroreal predict protocols/lg3_tomography_fock1.json   (Fock engine, chosen automatically)\n"
       "  macroreal predict noisy.json --engine weyl\n"
+      "  macroreal predict protocols/lg3_prepared_cat_conclusive.json --figures figs\n"
       "Exit codes: 0 success, 2 bad input (the message names the file and the JSON path).");
   cmd->callback([args] { set_action([args] { return run_predict(*args); }); });
 }

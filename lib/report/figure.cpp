@@ -82,6 +82,17 @@ void set_map_colours(plstream& pls) {
   pls.scmap1l(true, 4, pos, r, g, b, nullptr);
 }
 
+// Diverging: Okabe-Ito blue (0, 114, 178) at the low end, white at the middle (z = 0 on a
+// symmetric scale), Okabe-Ito vermillion (213, 94, 0) at the high end.
+void set_diverging_colours(plstream& pls) {
+  const PLFLT pos[] = {0.0, 0.5, 1.0};
+  const PLFLT r[] = {0.0, 1.0, 213.0 / 255};
+  const PLFLT g[] = {114.0 / 255, 1.0, 94.0 / 255};
+  const PLFLT b[] = {178.0 / 255, 1.0, 0.0};
+  pls.scmap1n(256);
+  pls.scmap1l(true, 3, pos, r, g, b, nullptr);
+}
+
 struct Frame {
   double x0, x1, y0, y1;
 };
@@ -94,14 +105,14 @@ Frame data_frame(const Figure& f) {
         if (!s.x.empty()) bx.add(axis_value(s.x[0], f.log_x));
         break;
       case FigureSeries::Kind::horizontal_line:
-        if (!s.y.empty()) by.add(s.y[0]);
+        if (!s.y.empty()) by.add(axis_value(s.y[0], f.log_y));
         break;
       default:
         for (double x : s.x) bx.add(axis_value(x, f.log_x));
-        for (double y : s.y) by.add(y);
-        for (double y : s.y_low) by.add(y);
-        for (double y : s.y_high) by.add(y);
-        if (s.kind == FigureSeries::Kind::histogram) by.add(0.0);
+        for (double y : s.y) by.add(axis_value(y, f.log_y));
+        for (double y : s.y_low) by.add(axis_value(y, f.log_y));
+        for (double y : s.y_high) by.add(axis_value(y, f.log_y));
+        if (s.kind == FigureSeries::Kind::histogram && !f.log_y) by.add(0.0);
     }
   }
   if (f.map) {
@@ -117,7 +128,10 @@ Frame data_frame(const Figure& f) {
     x0 = axis_value(f.x_range->first, f.log_x);
     x1 = axis_value(f.x_range->second, f.log_x);
   }
-  if (f.y_range) std::tie(y0, y1) = *f.y_range;
+  if (f.y_range) {
+    y0 = axis_value(f.y_range->first, f.log_y);
+    y1 = axis_value(f.y_range->second, f.log_y);
+  }
   return {x0, x1, y0, y1};
 }
 
@@ -137,6 +151,12 @@ void draw_map(plstream& pls, const FigureMap& m, const Frame& frame) {
   }
   if (bz.empty()) throw DomainError("figure map: no finite value");
   double zlo = bz.lo, zhi = bz.hi;
+  const bool diverging = m.diverging && !m.log_z;
+  if (diverging) {
+    const double a = std::max(std::abs(zlo), std::abs(zhi));
+    zlo = -a;
+    zhi = a;
+  }
   if (zlo == zhi) zhi = zlo + 1.0;
   // imagefr leaves values outside [valuemin, valuemax] undrawn: NaN cells become blank.
   const double blank = zlo - 1.0 - std::abs(zhi - zlo);
@@ -146,7 +166,10 @@ void draw_map(plstream& pls, const FigureMap& m, const Frame& frame) {
   std::vector<const PLFLT*> rows(nx);
   for (int i = 0; i < nx; ++i) rows[i] = z[i].data();
   MapTransform t{m.x_min, (m.x_max - m.x_min) / (nx - 1), m.y_min, (m.y_max - m.y_min) / (ny - 1)};
-  set_map_colours(pls);
+  if (diverging)
+    set_diverging_colours(pls);
+  else
+    set_map_colours(pls);
   pls.imagefr(rows.data(), nx, ny, m.x_min, m.x_max, m.y_min, m.y_max, zlo, zhi, zlo, zhi,
               map_transform, &t);
   if (m.boundary_level) {
@@ -172,33 +195,43 @@ void draw_map(plstream& pls, const FigureMap& m, const Frame& frame) {
   (void)frame;
 }
 
-void draw_series(plstream& pls, const FigureSeries& s, const Frame& fr, bool log_x) {
+void draw_series(plstream& pls, const FigureSeries& s, const Frame& fr, bool log_x, bool log_y) {
   pls.col0(colour_index(s.colour));
   pls.lsty(s.dashed ? 2 : 1);
   pls.width(2.0);
   std::vector<PLFLT> x(s.x.size());
   for (std::size_t i = 0; i < x.size(); ++i) x[i] = axis_value(s.x[i], log_x);
-  const auto n = static_cast<PLINT>(std::min(x.size(), s.y.size()));
+  const auto on_y = [log_y](const std::vector<double>& v) {
+    std::vector<PLFLT> out(v.size());
+    for (std::size_t i = 0; i < v.size(); ++i) out[i] = axis_value(v[i], log_y);
+    return out;
+  };
+  const std::vector<PLFLT> y = on_y(s.y), y_low = on_y(s.y_low), y_high = on_y(s.y_high);
+  const auto n = static_cast<PLINT>(std::min(x.size(), y.size()));
   switch (s.kind) {
     case FigureSeries::Kind::line:
-      if (n >= 2) pls.line(n, x.data(), s.y.data());
+      if (n >= 2) pls.line(n, x.data(), y.data());
       break;
     case FigureSeries::Kind::points:
-      pls.poin(n, x.data(), s.y.data(), 17);
+      pls.poin(n, x.data(), y.data(), 17);
       break;
     case FigureSeries::Kind::error_bars: {
-      const auto m = static_cast<PLINT>(std::min({x.size(), s.y_low.size(), s.y_high.size()}));
-      pls.erry(m, x.data(), s.y_low.data(), s.y_high.data());
-      pls.poin(n, x.data(), s.y.data(), 17);
+      const auto m = static_cast<PLINT>(std::min({x.size(), y_low.size(), y_high.size()}));
+      pls.erry(m, x.data(), y_low.data(), y_high.data());
+      pls.poin(n, x.data(), y.data(), 17);
       break;
     }
-    case FigureSeries::Kind::histogram:
-      for (std::size_t k = 0; k + 1 < x.size() && k < s.y.size(); ++k) {
+    case FigureSeries::Kind::histogram: {
+      // On a log axis a bar starts at the bottom of the frame; empty bins are not drawn.
+      const PLFLT base = log_y ? fr.y0 : 0.0;
+      for (std::size_t k = 0; k + 1 < x.size() && k < y.size(); ++k) {
+        if (!std::isfinite(y[k])) continue;
         const PLFLT bx[] = {x[k], x[k], x[k + 1], x[k + 1]};
-        const PLFLT by[] = {0.0, s.y[k], s.y[k], 0.0};
+        const PLFLT by[] = {base, y[k], y[k], base};
         pls.line(4, bx, by);
       }
       break;
+    }
     case FigureSeries::Kind::vertical_line:
       if (!x.empty()) {
         const PLFLT vx[] = {x[0], x[0]}, vy[] = {fr.y0, fr.y1};
@@ -206,8 +239,8 @@ void draw_series(plstream& pls, const FigureSeries& s, const Frame& fr, bool log
       }
       break;
     case FigureSeries::Kind::horizontal_line:
-      if (!s.y.empty()) {
-        const PLFLT hx[] = {fr.x0, fr.x1}, hy[] = {s.y[0], s.y[0]};
+      if (!y.empty()) {
+        const PLFLT hx[] = {fr.x0, fr.x1}, hy[] = {y[0], y[0]};
         pls.line(2, hx, hy);
       }
       break;
@@ -285,9 +318,9 @@ void render_figure(const Figure& figure, const std::string& path, FigureFormat f
     pls.vpor(0.12, figure.map ? 0.80 : 0.95, 0.13, 0.90);
     pls.wind(fr.x0, fr.x1, fr.y0, fr.y1);
     pls.col0(1);
-    pls.box(figure.log_x ? "bcnstl" : "bcnst", 0.0, 0, "bcnstv", 0.0, 0);
+    pls.box(figure.log_x ? "bcnstl" : "bcnst", 0.0, 0, figure.log_y ? "bcnstvl" : "bcnstv", 0.0, 0);
     pls.lab(figure.x_label.c_str(), figure.y_label.c_str(), figure.title.c_str());
-    for (const auto& s : figure.series) draw_series(pls, s, fr, figure.log_x);
+    for (const auto& s : figure.series) draw_series(pls, s, fr, figure.log_x, figure.log_y);
     draw_legend(pls, figure, fr);
   }  // the stream's destructor finishes and closes the file
 }

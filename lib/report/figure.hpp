@@ -44,6 +44,11 @@ struct FigureMap {
   std::string z_label;                // colour-bar label with units
   std::optional<double> boundary_level;
   bool log_z = false;                 // colour by log10(z) (z > 0)
+  // A signed quantity (e.g. a Wigner function): the colour scale runs over [-m, m] with
+  // m = max |z|, through white at 0, blue for negative and orange-red for positive values
+  // (Okabe-Ito blue and vermillion, a pair the common colour-vision deficiencies keep apart),
+  // so negative regions stand out. Ignored with log_z.
+  bool diverging = false;
 };
 
 struct Figure {
@@ -53,6 +58,7 @@ struct Figure {
   std::optional<FigureMap> map;
   std::optional<std::pair<double, double>> x_range, y_range;  // default: fitted to the data
   bool log_x = false;
+  bool log_y = false;                 // series y > 0 only; histogram bars start at the frame
 };
 
 struct FigureSize {
