@@ -42,6 +42,14 @@ std::string interval(const IntervalEstimate& e) {
   return s;
 }
 
+std::string corrected_interval_text(const CorrectedInterval& e) {
+  IntervalEstimate x;
+  x.valid = e.valid;
+  x.lo = e.lo;
+  x.hi = e.hi;
+  return interval(x);
+}
+
 std::string join(const std::vector<std::string>& v, const std::string& sep = "") {
   std::string s;
   for (std::size_t i = 0; i < v.size(); ++i) s += (i ? sep : "") + v[i];
@@ -109,6 +117,62 @@ ojson names(const std::vector<std::string>& v) {
   ojson a = ojson::array();
   for (const auto& s : v) a.push_back(s);
   return a;
+}
+
+ojson corrected_interval_json(const CorrectedInterval& c) {
+  return c.valid ? ojson::array({number(c.lo), number(c.hi)}) : ojson(nullptr);
+}
+
+// The `--correct-readout` extension of the JSON (DESIGN.md section 8: extended, not renamed).
+ojson readout_corrected_json(const ReadoutCorrectedAnalysis& c, double level) {
+  ojson j;
+  j["rates"] = {{"dark_read_bright", {{"estimate", c.dark_read_bright}, {"se", c.dark_read_bright_se},
+                                      {"effective_calibration_shots", c.dark_read_bright_shots}}},
+                {"bright_read_dark", {{"estimate", c.bright_read_dark}, {"se", c.bright_read_dark_se},
+                                      {"effective_calibration_shots", c.bright_read_dark_shots}}}};
+  j["rates_source"] = c.rates_source;
+  j["rates_uncertainty"] = c.uncertainty;
+  j["misread_continuation"] = c.continuation;
+  j["default_interval"] = c.default_interval;
+  j["bootstrap_replicates"] = c.replicates;
+  j["seed"] = c.seed;
+  ojson est = ojson::object();
+  for (const auto& e : c.estimates) {
+    ojson x;
+    x["estimate"] = number(e.estimate);
+    x["ci"] = corrected_interval_json(e.ci);
+    x["level"] = level;
+    x["method"] = e.ci.method;
+    x["raw"] = number(e.raw);
+    x["std_error"] = number(e.std_error);
+    x["std_error_shots_only"] = number(e.std_error_shots);
+    x["ci_rates_fixed"] = corrected_interval_json(e.ci_rates_fixed);
+    ojson all = ojson::array();
+    for (const auto& iv : e.intervals) all.push_back({{"method", iv.method}, {"ci", corrected_interval_json(iv)}});
+    x["intervals"] = all;
+    x["status"] = e.status;
+    est[e.name] = x;
+  }
+  j["estimates"] = est;
+  ojson tests = ojson::array();
+  for (const auto* group : {&c.leggett_garg, &c.nsit})
+    for (const auto& t : *group) {
+      ojson x;
+      x["kind"] = group == &c.leggett_garg ? "leggett-garg" : "nsit";
+      x["label"] = t.label;
+      x["quantity"] = t.quantity;
+      x["estimate"] = number(t.estimate);
+      x["raw"] = number(t.raw);
+      x["std_error"] = number(t.std_error);
+      x["bound"] = t.bound;
+      primary_fields(x, t.tests, "z-asymptotic");
+      x["verdict"] = t.verdict;
+      tests.push_back(x);
+    }
+  j["tests"] = tests;
+  j["tests_note"] = c.tests_note;
+  j["assumptions"] = names(c.assumptions);
+  return j;
 }
 
 }  // namespace
@@ -237,6 +301,8 @@ nlohmann::ordered_json analysis_json(const AnalysisResult& r) {
   }
   j["drift"] = drift;
   j["detection_model"] = r.detection_model;
+  if (!r.threshold_note.empty()) j["count_threshold"] = r.threshold_note;
+  if (r.readout_corrected) j["readout_corrected"] = readout_corrected_json(*r.readout_corrected, r.level);
   j["cautions"] = names(r.cautions);
   j["not_established"] = names(r.not_established);
   return j;
@@ -253,7 +319,9 @@ std::string analysis_text(const AnalysisResult& r) {
   out += "  readout   " + to_string(r.readout) + "\n";
   out += "  level     " + lvl + "   seed " + std::to_string(r.seed) + "   bootstrap B = " +
          std::to_string(r.replicates) + "\n";
-  out += "  interval  default " + r.default_interval + "\n\n";
+  out += "  interval  default " + r.default_interval + "\n";
+  if (!r.threshold_note.empty()) out += wrap(r.threshold_note, "  counts    ", "            ");
+  out += "\n";
 
   out += "Rows\n";
   out += "  read " + std::to_string(r.rows.read) + ", used " + std::to_string(r.rows.used) +
@@ -380,6 +448,40 @@ std::string analysis_text(const AnalysisResult& r) {
     out += "  not checked: " + r.drift.not_checked + "\n";
   }
   out += "\n";
+
+  if (r.readout_corrected) {
+    const auto& c = *r.readout_corrected;
+    out += "Readout-corrected estimates (misassignment inverted; " + lvl + " intervals)\n";
+    out += wrap("P(read bright | dark) = " + num(c.dark_read_bright, 6) + " (se " + num(c.dark_read_bright_se, 6) +
+                    "), P(read dark | bright) = " + num(c.bright_read_dark, 6) + " (se " +
+                    num(c.bright_read_dark_se, 6) + ") from " + c.rates_source,
+                "  rates     ", "            ");
+    out += wrap(c.uncertainty, "  spread    ", "            ");
+    if (r.readout == Readout::destructive)
+      out += "  misread   continuation " + c.continuation + " (a bright read as dark: later results " +
+             (c.continuation == "fair" ? std::string("fair coin flips") : "true dark with probability " + c.continuation.substr(5)) +
+             ")\n";
+    out += wrap(c.default_interval + ", B = " + std::to_string(c.replicates), "  interval  ", "            ");
+    Table t({false, true, true, true, false, false});
+    t.row({"quantity", "raw", "corrected", "se", c.estimates.empty() ? "" : c.estimates.front().ci.method + " (rates redrawn)",
+           "rates fixed"});
+    for (const auto& e : c.estimates)
+      t.row({e.name, num(e.raw), num(e.estimate), num(e.std_error), corrected_interval_text(e.ci),
+             corrected_interval_text(e.ci_rates_fixed)});
+    out += t.str();
+    Table tt({false, false, true, true, true});
+    tt.row({"test", "method", "statistic", "p-value", "sigma"});
+    for (const auto* group : {&c.leggett_garg, &c.nsit})
+      for (const auto& g : *group)
+        for (const auto& tr : g.tests) tt.row({g.label, tr.method, num(tr.statistic), pval(tr.p_value), num(tr.sigma, 2)});
+    out += tt.str();
+    for (const auto* group : {&c.leggett_garg, &c.nsit})
+      for (const auto& g : *group) out += wrap(g.verdict, "  " + g.label + ": ", "    ");
+    out += wrap(c.tests_note, "  tests: ", "    ");
+    out += "  assumptions:\n";
+    for (const auto& a : c.assumptions) out += wrap(a, "  - ", "    ");
+    out += "\n";
+  }
 
   out += "Cautions\n";
   for (const auto& c : r.cautions) out += wrap(c, "  - ", "    ");

@@ -28,6 +28,7 @@
 #include "stats/invasiveness.hpp"
 #include "stats/leggett_garg_tests.hpp"
 #include "stats/multiplicity.hpp"
+#include "stats/readout_corrected_result.hpp"
 
 namespace macroreal {
 
@@ -146,6 +147,11 @@ struct AnalysisResult {
   MultiplicityAnalysis multiplicity;
   DriftCheck drift;
   std::string detection_model;
+  // Where the photon-count threshold came from ("" when the runs had no photon counts).
+  std::string threshold_note;
+  // With `--correct-readout` (detection/readout_corrected_analysis.hpp): the corrected
+  // estimates next to the raw ones above, which stay the recorded-results analysis.
+  std::optional<ReadoutCorrectedAnalysis> readout_corrected;
   std::vector<std::string> cautions;
   std::vector<std::string> not_established;
 };
