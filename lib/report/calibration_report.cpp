@@ -57,7 +57,8 @@ std::vector<std::string> not_established(const CalibrationResult&) {
       "extrapolation at fixed rates per second.",
       "Errors from state preparation versus detection: the two are not separated.",
       "The readout errors inside a sequence (back-action of a misread bright shot on the "
-      "oscillator): not measured here, and not yet corrected by analyse.",
+      "oscillator): not measured here. analyse --correct-readout models them with a declared "
+      "continuation (by default later results are fair coin flips), which this calibration does not test.",
   };
 }
 
