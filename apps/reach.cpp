@@ -2,7 +2,8 @@
 // device reach a conclusive Leggett-Garg or NSIT test, in how many hours, and what limits it
 // (lib/device/feasibility.hpp); `--map P1,P2` writes a grid of time-to-conclusive (CSV) over two
 // parameters given as ranges; `--shard k/N` computes one part of it and `--merge PART...`
-// joins the parts into the same bytes as one run (lib/report/reach_report.hpp).
+// joins the parts into the same bytes as one run (lib/report/reach_report.hpp); `--figures DIR`
+// with --map draws the map (lib/report/reach_figures.hpp).
 // Thin: parse, call the library, print; the whole output is built before it is written.
 #include <fstream>
 #include <iostream>
@@ -14,6 +15,8 @@
 #include "device/device_spec.hpp"
 #include "device/feasibility.hpp"
 #include "device/reach_map.hpp"
+#include "report/command_figures.hpp"
+#include "report/reach_figures.hpp"
 #include "report/reach_report.hpp"
 
 namespace macroreal::apps {
@@ -31,6 +34,7 @@ struct ReachArgs {
   std::vector<std::string> merge;
   std::string output = "-";
   int threads = 0;
+  std::string figures;
   bool check = false;
 };
 
@@ -53,6 +57,8 @@ void emit(const std::string& text, const std::string& output) {
 
 int run_reach(const ReachArgs& a) {
   if (!a.merge.empty()) {
+    if (!a.figures.empty())
+      throw InputError("", "--figures", "draws a whole --map run, not with --merge");
     std::vector<std::string> texts;
     for (const auto& p : a.merge) texts.push_back(slurp(p));
     emit(merge_map_parts(texts, a.merge), a.output);
@@ -84,12 +90,22 @@ int run_reach(const ReachArgs& a) {
         throw InputError("", "--shard", "\"" + a.shard + "\" is not k/N");
       }
     }
+    if (!a.figures.empty() && !a.shard.empty())
+      throw InputError("", "--figures", "draws the whole map: not with --shard");
     const ReachMap map = reach_map(spec, a.map.substr(0, comma), a.map.substr(comma + 1), mo);
     emit(a.shard.empty() ? map_csv_text(map, opt) : map_part_text(map, opt, mo.shard, mo.shards),
          a.output);
+    if (!a.figures.empty()) {  // on stderr: stdout (or -o) holds the CSV alone
+      if (reach_map_has_conclusive_point(map))
+        std::cerr << figures_written_line(a.figures, write_reach_figures(map, opt, a.figures));
+      else
+        std::cerr << "No figure written: no point of the map reaches a conclusive test (the CSV "
+                     "says so point by point).\n";
+    }
     return 0;
   }
   if (!a.shard.empty()) throw InputError("", "--shard", "only with --map");
+  if (!a.figures.empty()) throw InputError("", "--figures", "only with --map");
   const ReachResult r = reach(spec.base, opt);
   emit(a.json ? reach_json_text(r, spec) : reach_text(r, spec), a.output);
   if (a.check && !r.conclusive) {
@@ -123,6 +139,10 @@ void register_reach(CLI::App& app) {
   cmd->add_option("--merge", args->merge, "join map part files into the final CSV")
       ->type_name("PART...");
   cmd->add_option("--threads", args->threads, "OpenMP threads for --map (default: all)");
+  cmd->add_option("--figures", args->figures,
+                  "with --map: write DIR/reach_map.svg and .png (hours on a log colour scale, "
+                  "the feasibility boundary drawn)")
+      ->type_name("DIR");
   cmd->add_flag("--check", args->check,
                 "exit with code 1 when no conclusive test fits in the device's available hours");
   cmd->add_option("-o,--output", args->output, "write to FILE instead of standard output")
@@ -131,8 +151,8 @@ void register_reach(CLI::App& app) {
       "Examples:\n"
       "  macroreal reach example_runs/devices/membrane_transmon.json\n"
       "  macroreal reach example_runs/devices/trapped_ion_mode.json --test nsit --json\n"
-      "  macroreal reach example_runs/devices/membrane_map.json "
-      "--map bath_temperature_k,coupling_g_over_2pi_hz -o map.csv\n"
+      "  macroreal reach example_runs/devices/trapped_ion_map.json "
+      "--map occupation_after_cooling,coupling_g_over_2pi_hz -o map.csv --figures figs\n"
       "  macroreal reach dev.json --map quality_factor,qubit_t2_s --shard 2/8 -o part2.csv\n"
       "  macroreal reach --merge part1.csv part2.csv ... -o map.csv\n"
       "  macroreal reach dev.json --check || echo \"not conclusive in the time available\"\n"

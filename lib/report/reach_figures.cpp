@@ -168,6 +168,12 @@ ReachMapFigure reach_map_figure(const ReachMap& map, const ReachOptions& options
   return out;
 }
 
+bool reach_map_has_conclusive_point(const ReachMap& map) {
+  for (const auto& p : map.points)
+    if (std::isfinite(p.seconds)) return true;
+  return false;
+}
+
 std::vector<std::string> write_reach_figures(const ReachMap& map, const ReachOptions& options,
                                              const std::string& dir) {
   return write_figure(reach_map_figure(map, options).figure, dir, "reach_map");

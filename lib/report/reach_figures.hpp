@@ -29,6 +29,9 @@ struct ReachMapFigure {
 // a finite time (nothing to colour).
 ReachMapFigure reach_map_figure(const ReachMap& map, const ReachOptions& options);
 
+// True when some point has a finite time to a conclusive test (else there is nothing to colour).
+bool reach_map_has_conclusive_point(const ReachMap& map);
+
 // Writes <dir>/reach_map.svg and .png; returns the paths written.
 std::vector<std::string> write_reach_figures(const ReachMap& map, const ReachOptions& options,
                                              const std::string& dir);

@@ -69,3 +69,41 @@ TEST_CASE("reach: map shards merged give the bytes of one run", "[apps][reach]")
   CHECK(merged.out == macroreal::test_support::slurp(whole));
   CHECK(merged.out.find("hours_to_conclusive,feasible,boundary") != std::string::npos);
 }
+
+TEST_CASE("reach: --map --figures writes the map figure, --figures alone is refused",
+          "[apps][reach]") {
+  const fs::path figs = dir() / "figs";
+  const Run r = run("reach " + demo("trapped_ion_map.json") +
+                    " --map occupation_after_cooling,coupling_g_over_2pi_hz --threads 2 --figures '" +
+                    figs.string() + "'");
+  REQUIRE(r.code == 0);
+  CHECK(r.out.find("hours_to_conclusive,feasible,boundary") != std::string::npos);
+  CHECK(fs::file_size(figs / "reach_map.svg") > 1000);
+  CHECK(fs::file_size(figs / "reach_map.png") > 1000);
+  // A map with no conclusive point: the CSV, no figure, a note on stderr, success.
+  const fs::path none = dir() / "none";
+  const Run empty = run("reach " + demo("membrane_map.json") +
+                        " --map bath_temperature_k,coupling_g_over_2pi_hz --figures '" +
+                        none.string() + "'");
+  CHECK(empty.code == 0);
+  CHECK(empty.err.find("No figure written") != std::string::npos);
+  CHECK_FALSE(fs::exists(none / "reach_map.png"));
+  const Run bad = run("reach " + demo("trapped_ion_mode.json") + " --figures '" + figs.string() + "'");
+  CHECK(bad.code == 2);
+  CHECK(bad.err.find("--figures") != std::string::npos);
+}
+
+TEST_CASE("reach: the shipped demo outputs are reproduced byte for byte", "[apps][reach]") {
+  // Regression and reproducibility check of our own output (example_runs/devices/README.md):
+  // the command is the first line of each shipped file ("$ macroreal ...").
+  for (const char* f : {"reach_trapped_ion.txt", "reach_trapped_ion_map.txt"}) {
+    const std::string shipped = macroreal::test_support::slurp(
+        fs::path(MACROREAL_SOURCE_DIR) / "example_runs/devices" / f);
+    const std::string first = shipped.substr(0, shipped.find('\n'));
+    INFO(f);
+    REQUIRE(first.rfind("$ macroreal ", 0) == 0);
+    const Run r = run(first.substr(std::string("$ macroreal ").size()));
+    REQUIRE(r.code == 0);
+    CHECK(first + "\n" + r.out == shipped);
+  }
+}
