@@ -14,7 +14,9 @@
 #include "apps/commands.hpp"
 #include "core/error.hpp"
 #include "protocol/protocol_reader.hpp"
+#include "report/analysis_figures.hpp"
 #include "report/analysis_report.hpp"
+#include "report/analysis_report_directory.hpp"
 #include "stats/analysis.hpp"
 #include "stats/analysis_check.hpp"
 #include "stats/runs_input.hpp"
@@ -35,8 +37,36 @@ struct AnalyseArgs {
   std::optional<double> margin;
   bool counts = false;
   std::string output = "-";
+  std::string figures_dir;           // --figures DIR (empty: none)
+  std::string report_dir;            // --report DIR (empty: none)
   std::vector<std::string> check;  // tests whose verdict sets the exit code
 };
+
+// The command line as the shell passed it (argv joined by spaces; an argument with spaces or
+// shell specials is single-quoted so the line can be run again). Read from /proc/self/cmdline
+// so that main() needs no change; "" where that file does not exist.
+std::string command_line_as_run() {
+  std::ifstream in("/proc/self/cmdline", std::ios::binary);
+  const std::string raw{std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
+  std::string line, arg;
+  auto flush = [&] {
+    const bool plain = !arg.empty() && arg.find_first_not_of(
+        "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789-_./=:,+@%") == std::string::npos;
+    std::string quoted = plain ? arg : "'";
+    if (!plain) {
+      for (char c : arg) quoted += c == '\'' ? std::string("'\\''") : std::string(1, c);
+      quoted += '\'';
+    }
+    line += (line.empty() ? "" : " ") + quoted;
+    arg.clear();
+  };
+  for (char c : raw) {
+    if (c == '\0') flush();
+    else arg += c;
+  }
+  if (!arg.empty()) flush();
+  return line;
+}
 
 int run_analyse(const AnalyseArgs& args) {
   ProtocolReadOptions read;
@@ -65,8 +95,22 @@ int run_analyse(const AnalyseArgs& args) {
   options.replicates = args.bootstrap;
   options.margin = args.margin;
   options.drift = runs.drift;
+  options.keep_replicates = !args.figures_dir.empty() || !args.report_dir.empty();
   AnalysisResult result = analyse_campaign(proto, runs.read.counts, options);
   result.runs_file = args.runs == "-" ? "<stdin>" : args.runs;
+  // Files first: an error leaves stdout empty.
+  if (!args.figures_dir.empty() || !args.report_dir.empty()) {
+    const AnalysisFigures figures = analysis_figures(proto, runs.read.counts, result);
+    if (!args.figures_dir.empty()) write_analysis_figures(figures, args.figures_dir);
+    if (!args.report_dir.empty()) {
+      ReportProvenance provenance;
+      provenance.command_line = command_line_as_run();
+      provenance.version = MACROREAL_VERSION;
+      provenance.inputs.push_back({"runs", args.runs});
+      provenance.inputs.push_back({"protocol", args.protocol});
+      write_analysis_report(result, figures, provenance, args.report_dir);
+    }
+  }
   const std::string text = args.json ? analysis_json_text(result) : analysis_text(result);
   if (args.output == "-") {
     std::cout << text << std::flush;
@@ -118,6 +162,14 @@ void register_analyse(CLI::App& app) {
       ->allow_extra_args(false);  // one value per --check, so a positional after it stays one
   cmd->add_option("-o,--output", args->output, "write to FILE instead of standard output (- : stdout)")
       ->type_name("FILE|-");
+  cmd->add_option("--figures", args->figures_dir,
+                  "also draw the figures (SVG and PNG) into DIR: K and S with their intervals over the "
+                  "model, the histogram of S over a scan against the model's, the bootstrap distributions")
+      ->type_name("DIR");
+  cmd->add_option("--report", args->report_dir,
+                  "also write DIR/report.md (command, seed, input checksums, rows, estimates, tests, "
+                  "cautions, figures), DIR/results.tex (LaTeX table) and DIR/figures/")
+      ->type_name("DIR");
   cmd->footer(
       "Examples:\n"
       "  macroreal analyse example_runs/lg3_thermal_runs.csv --protocol protocols/lg3_thermal.json\n"

@@ -20,7 +20,10 @@ std::string num(double x, int digits) {
   return buf;
 }
 
-std::string percent(double level) { return num(100.0 * level, level * 100.0 == std::round(level * 100.0) ? 0 : 1) + " %"; }
+std::string percent(double level) {
+  const double x = 100.0 * level;
+  return num(x, std::abs(x - std::round(x)) < 1e-9 ? 0 : 1) + " %";
+}
 
 const QuantityEstimate* estimate_of(const AnalysisResult& r, const std::string& name) {
   for (const auto& q : r.estimates)

@@ -5,6 +5,7 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <cstdio>
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
@@ -162,4 +163,80 @@ TEST_CASE("analyse CLI: the shipped demo output is reproduced byte for byte", "[
   const Run r = run(first.substr(std::string("$ macroreal ").size()));
   REQUIRE(r.code == 0);
   CHECK(first + "\n" + r.out == shipped);
+}
+
+namespace {
+
+// The PNG decoded by tests/support/png_summary.py (Python standard library only), or null.
+json png_summary(const fs::path& png) {
+  const std::string cmd = std::string(MACROREAL_PYTHON) + " '" + MACROREAL_SOURCE_DIR +
+                          "/tests/support/png_summary.py' '" + png.string() + "'";
+  FILE* p = ::popen(cmd.c_str(), "r");
+  if (!p) return nullptr;
+  std::string out;
+  char buf[512];
+  while (std::fgets(buf, sizeof buf, p)) out += buf;
+  if (::pclose(p) != 0 || out.empty()) return nullptr;
+  return json::parse(out);
+}
+
+void check_figure_files(const fs::path& dir, const std::string& stem) {
+  INFO(dir / stem);
+  const std::string svg = slurp(dir / (stem + ".svg"));
+  CHECK(svg.find("<svg") != std::string::npos);
+  CHECK(svg.rfind("</svg>") != std::string::npos);
+  const fs::path png = dir / (stem + ".png");
+  const std::string bytes = slurp(png);
+  REQUIRE(bytes.size() > 8);
+  CHECK(bytes.compare(0, 8, std::string("\x89PNG\r\n\x1a\n", 8)) == 0);
+  const json s = png_summary(png);
+  if (s.is_null()) {
+    WARN("python3 not available: PNG decoding skipped");
+    return;
+  }
+  CHECK(s["width"] == 800);  // figure.hpp's default FigureSize
+  CHECK(s["height"] == 600);
+  CHECK(s["non_background_fraction"].get<double>() > 0.01);  // axes, text, data: not blank
+  CHECK(s["colours"].get<int>() >= 3);
+}
+
+}  // namespace
+
+TEST_CASE("analyse CLI: --report twice with the same seed writes the same report.md and results.tex", "[apps][analyse][report]") {
+  const fs::path dir = temp_dir() / "report_bundle";
+  const std::string cmd = "analyse " + kRuns + " " + kProtocol + " --bootstrap 1000 --seed 17 --report '" +
+                          dir.string() + "'";
+  const Run a = run(cmd);
+  REQUIRE(a.code == 0);
+  const std::string md1 = slurp(dir / "report.md"), tex1 = slurp(dir / "results.tex");
+  REQUIRE_FALSE(md1.empty());
+  REQUIRE_FALSE(tex1.empty());
+  // The command line as run, the seed and B are recorded.
+  CHECK(md1.find(" analyse " + kRuns + " " + kProtocol + " --bootstrap 1000 --seed 17 --report ") != std::string::npos);
+  CHECK(md1.find("| seed | 17 |") != std::string::npos);
+  CHECK(md1.find("| bootstrap replicates B | 1000 |") != std::string::npos);
+  CHECK(md1.find("](figures/lg_estimates.png)") != std::string::npos);
+  const Run b = run(cmd);
+  REQUIRE(b.code == 0);
+  CHECK(b.out == a.out);  // the text report on stdout is unchanged by --report
+  CHECK(slurp(dir / "report.md") == md1);
+  CHECK(slurp(dir / "results.tex") == tex1);
+  check_figure_files(dir / "figures", "lg_estimates");
+  check_figure_files(dir / "figures", "bootstrap_K_ABC");
+}
+
+TEST_CASE("analyse CLI: --figures on a simulated NSIT scan writes valid, non-blank figures", "[apps][analyse][report]") {
+  const fs::path d = temp_dir() / "scan";
+  fs::create_directories(d);
+  const Run sim = run("simulate protocols/nsit_orientation_scan_cat.json --shots 400 --seed 3 -o '" +
+                      (d / "runs.csv").string() + "'");
+  REQUIRE(sim.code == 0);
+  const fs::path figs = d / "figures";
+  const Run r = run("analyse '" + (d / "runs.csv").string() +
+                    "' --protocol protocols/nsit_orientation_scan_cat.json --bootstrap 1000 --seed 2 --figures '" +
+                    figs.string() + "'");
+  REQUIRE(r.code == 0);
+  for (const char* stem : {"nsit_estimates", "nsit_scan_histogram", "bootstrap_S_A0-B", "bootstrap_S_A5-B"})
+    check_figure_files(figs, stem);
+  CHECK_FALSE(fs::exists(figs / "lg_estimates.svg"));  // no LG test in the file
 }
