@@ -1,5 +1,6 @@
 // `macroreal analyse RUNS --protocol P.json [--json] [--level L] [--seed S] [--bootstrap B]
-// [--on-bad-row error|skip] [--threshold T] [--margin M] [--counts] [-o FILE|-]`: estimates,
+// [--on-bad-row error|skip] [--threshold T] [--margin M] [--counts] [--calibration FILE]
+// [--correct-readout [--misread-continuation fair|dark=P]] [-o FILE|-]`: estimates,
 // intervals and tests of a finished campaign (lib/stats/analysis.hpp), printed as a text
 // report or JSON (lib/report/analysis_report.hpp). RUNS is an outcome table (CSV) or a counts
 // JSON, told apart by --counts, the extension or the content; "-" reads standard input.
@@ -13,6 +14,10 @@
 
 #include "apps/commands.hpp"
 #include "core/error.hpp"
+#include "detection/calibration_file.hpp"
+#include "detection/count_threshold_choice.hpp"
+#include "detection/readout_corrected_analysis.hpp"
+#include "phase_space/number_text.hpp"
 #include "protocol/protocol_reader.hpp"
 #include "report/analysis_figures.hpp"
 #include "report/analysis_report.hpp"
@@ -36,6 +41,9 @@ struct AnalyseArgs {
   std::optional<double> threshold;
   std::optional<double> margin;
   bool counts = false;
+  std::string calibration;           // --calibration FILE
+  bool correct_readout = false;      // --correct-readout
+  std::string misread_continuation;  // --misread-continuation (empty: not given)
   std::string output = "-";
   std::string figures_dir;           // --figures DIR (empty: none)
   std::string report_dir;            // --report DIR (empty: none)
@@ -78,9 +86,24 @@ int run_analyse(const AnalyseArgs& args) {
                              ? parse_protocol_text(read_input("-"), input_label("-"), read)
                              : read_protocol(args.protocol, read);
 
+  std::optional<Calibration> calibration;
+  if (!args.calibration.empty()) calibration = read_calibration(args.calibration);
+  if (!args.misread_continuation.empty() && !args.correct_readout)
+    throw DomainError("--misread-continuation " + args.misread_continuation +
+                      " needs --correct-readout (it only describes how the correction models a misread bright)");
+  const MisreadContinuation continuation =
+      parse_misread_continuation(args.misread_continuation.empty() ? "fair" : args.misread_continuation);
+  if (args.correct_readout && calibration && args.threshold && *args.threshold != calibration->threshold)
+    throw DomainError("--correct-readout with --threshold " + detail::number_text(*args.threshold) +
+                      ": the error rates of " + args.calibration + " hold at its threshold " +
+                      detail::number_text(calibration->threshold) +
+                      " only; leave --threshold out or calibrate at the threshold you want");
+  const CountThresholdChoice threshold =
+      choose_count_threshold(args.threshold, calibration ? &*calibration : nullptr, args.calibration, proto);
+
   OutcomeTableOptions table;
   table.bad_rows = parse_bad_row_policy(args.on_bad_row);
-  table.threshold = args.threshold;
+  table.threshold = threshold.threshold;
   RunsInput runs;
   if (args.runs == "-") {
     const std::string text{std::istreambuf_iterator<char>(std::cin), std::istreambuf_iterator<char>()};
@@ -88,6 +111,12 @@ int run_analyse(const AnalyseArgs& args) {
   } else {
     runs = read_runs_file(args.runs, proto, table, args.counts);
   }
+
+  const long photon_results = runs.read.photon_count_results;
+  if (calibration && photon_results == 0 && !args.correct_readout)
+    throw DomainError("--calibration " + args.calibration + " is not used: the runs have no photon counts (their "
+                      "results are dark/bright), so there is nothing to threshold; add --correct-readout to "
+                      "correct with its error rates, or leave --calibration out");
 
   AnalysisOptions options;
   options.level = args.level;
@@ -98,6 +127,22 @@ int run_analyse(const AnalyseArgs& args) {
   options.keep_replicates = !args.figures_dir.empty() || !args.report_dir.empty();
   AnalysisResult result = analyse_campaign(proto, runs.read.counts, options);
   result.runs_file = args.runs == "-" ? "<stdin>" : args.runs;
+  result.threshold_note = threshold_note(threshold, photon_results);
+  if (args.correct_readout) {
+    ReadoutCorrectionOptions ro;
+    ro.rates = calibration ? rates_from_calibration(*calibration, args.calibration) : rates_from_protocol(proto);
+    ro.continuation = continuation;
+    ro.level = args.level;
+    ro.seed = args.seed;
+    ro.replicates = args.bootstrap;
+    if (photon_results == 0)
+      ro.extra_assumptions.push_back(
+          "The runs hold dark/bright results, not counts: they are assumed to have been decided with the "
+          "threshold the error rates belong to" +
+          (calibration ? " (" + detail::number_text(calibration->threshold) + " for " + args.calibration + ")"
+                       : std::string()) + ".");
+    attach_readout_correction(result, readout_corrected_analysis(proto, runs.read.counts, ro));
+  }
   // Files first: an error leaves stdout empty.
   if (!args.figures_dir.empty() || !args.report_dir.empty()) {
     const AnalysisFigures figures = analysis_figures(proto, runs.read.counts, result);
@@ -108,6 +153,7 @@ int run_analyse(const AnalyseArgs& args) {
       provenance.version = MACROREAL_VERSION;
       provenance.inputs.push_back({"runs", args.runs});
       provenance.inputs.push_back({"protocol", args.protocol});
+      if (!args.calibration.empty()) provenance.inputs.push_back({"calibration", args.calibration});
       write_analysis_report(result, figures, provenance, args.report_dir);
     }
   }
@@ -154,6 +200,18 @@ void register_analyse(CLI::App& app) {
   cmd->add_option("--margin", args->margin,
                   "NSIT equivalence margin for TOST, for tests without their own \"margin\"");
   cmd->add_flag("--counts", args->counts, "RUNS is a counts JSON whatever its name or content");
+  cmd->add_option("--calibration", args->calibration,
+                  "calibration file (macroreal-calibration/1, from calibrate): its threshold reads photon "
+                  "counts (--threshold overrides) and --correct-readout uses its error rates and intervals")
+      ->type_name("FILE");
+  cmd->add_flag("--correct-readout", args->correct_readout,
+                "also report misassignment-corrected estimates, K and S (rates from --calibration, else "
+                "the protocol's detection model), with intervals that include the rates' uncertainty");
+  cmd->add_option("--misread-continuation", args->misread_continuation,
+                  "with --correct-readout, destructive readout: later results of a shot whose bright "
+                  "result was misread as dark are fair coin flips (fair, the default, as simulate "
+                  "assumes) or dark with probability P (dark=P)")
+      ->type_name("fair|dark=P");
   cmd->add_option("--check", args->check,
                   "exit with code 1 unless the named tests reject their null hypothesis at alpha = "
                   "1 - level (primary p-value after Holm's adjustment over all tests; summary on "
@@ -174,6 +232,8 @@ void register_analyse(CLI::App& app) {
       "Examples:\n"
       "  macroreal analyse example_runs/lg3_thermal_runs.csv --protocol protocols/lg3_thermal.json\n"
       "  macroreal analyse counts.json --protocol p.json --json --seed 7 --bootstrap 20000\n"
+      "  macroreal analyse runs.csv --protocol p.json --report report_dir --figures figs\n"
+      "  macroreal analyse counts.csv --protocol p.json --calibration cal.json --correct-readout\n"
       "  zcat runs.csv.gz | macroreal analyse - --protocol p.json --on-bad-row skip\n"
       "  macroreal analyse runs.csv --protocol p.json --level 0.99 --check lg && echo \"LG violated\"\n"
       "Exit codes: 0 success, 1 with --check: a test does not reach the level, 2 bad input (the\n"

@@ -240,3 +240,96 @@ TEST_CASE("analyse CLI: --figures on a simulated NSIT scan writes valid, non-bla
     check_figure_files(figs, stem);
   CHECK_FALSE(fs::exists(figs / "lg_estimates.svg"));  // no LG test in the file
 }
+
+// Photon-count tables with a calibration file, and --correct-readout (issue 5). The counts
+// table is the shipped simulated one (invented data, threshold 2 in its simulation).
+TEST_CASE("analyse CLI: --calibration thresholds photon counts and says where the threshold came from",
+          "[apps][analyse][detection]") {
+  const std::string counts = "example_runs/simulated_lg3_counts_drift.csv";
+  const Run r = run("analyse " + counts + " " + kProtocol + " --bootstrap 200 --calibration example_runs/calibration.json");
+  REQUIRE(r.code == 0);
+  CHECK(r.out.find("photon-count results read with threshold 2") != std::string::npos);
+  CHECK(r.out.find("Readout-corrected") == std::string::npos);  // not asked for
+  const Run j = run("analyse " + counts + " " + kProtocol +
+                    " --bootstrap 200 --calibration example_runs/calibration.json --json");
+  REQUIRE(j.code == 0);
+  CHECK(json::parse(j.out)["count_threshold"].get<std::string>().find(
+            "reads dark), from the calibration file example_runs/calibration.json") != std::string::npos);
+  // --threshold overrides and says so. (A different value would re-read this destructive table
+  // into shots that go on after a bright result, which the reader rejects; the same value
+  // shows the override.)
+  const Run o = run("analyse " + counts + " " + kProtocol +
+                    " --bootstrap 200 --calibration example_runs/calibration.json --threshold 2 --json");
+  REQUIRE(o.code == 0);
+  const std::string note = json::parse(o.out)["count_threshold"].get<std::string>();
+  CHECK(note.find("from --threshold (overrides the calibration file example_runs/calibration.json's 2)") !=
+        std::string::npos);
+}
+
+TEST_CASE("analyse CLI: --correct-readout reports raw and corrected K with the assumptions",
+          "[apps][analyse][detection]") {
+  const std::string counts = "example_runs/simulated_lg3_counts_drift.csv";
+  const std::string cmd = "analyse " + counts + " " + kProtocol +
+                          " --bootstrap 300 --seed 4 --calibration example_runs/calibration.json --correct-readout";
+  const Run t = run(cmd);
+  REQUIRE(t.code == 0);
+  CHECK(t.out.find("Readout-corrected estimates") != std::string::npos);
+  CHECK(t.out.find("continuation fair") != std::string::npos);
+  CHECK(t.out.find("not clipped") != std::string::npos);
+  const Run r = run(cmd + " --json");
+  REQUIRE(r.code == 0);
+  const json j = json::parse(r.out);
+  const json& c = j["readout_corrected"];
+  CHECK(c["rates"]["dark_read_bright"]["estimate"].get<double>() == Approx(0.00023421168127465926));
+  CHECK(c["rates"]["bright_read_dark"]["se"].get<double>() > 0);
+  const json& k = c["estimates"]["K[ABC]"];
+  CHECK(k["raw"].get<double>() == j["estimates"]["K[ABC]"]["estimate"].get<double>());  // raw kept as is
+  CHECK(k["estimate"].get<double>() != k["raw"].get<double>());
+  CHECK(k["ci"].size() == 2);
+  CHECK(k["ci_rates_fixed"].size() == 2);
+  CHECK(k["std_error"].get<double>() >= k["std_error_shots_only"].get<double>());
+  CHECK(c["tests"][0]["kind"] == "leggett-garg");
+  CHECK(c["tests"][0]["method"] == "z-asymptotic");
+  CHECK(c["assumptions"].size() >= 4);
+  CHECK(c["misread_continuation"] == "fair");
+  const Run d = run(cmd + " --json --misread-continuation dark=0.3");
+  REQUIRE(d.code == 0);
+  CHECK(json::parse(d.out)["readout_corrected"]["misread_continuation"] == "dark=0.3");
+  SECTION("rates from the protocol's detection model, on a dark/bright table") {
+    const Run p = run("analyse " + kRuns + " " + kProtocol + " --bootstrap 200 --correct-readout --json");
+    REQUIRE(p.code == 0);
+    const json q = json::parse(p.out)["readout_corrected"];
+    CHECK(q["rates_source"].get<std::string>().find("the protocol's detection model") != std::string::npos);
+    CHECK(q["rates"]["dark_read_bright"]["se"].get<double>() == 0);
+  }
+}
+
+TEST_CASE("analyse CLI: bad combinations of the readout options exit 2 with a clear message",
+          "[apps][analyse][detection]") {
+  const std::string counts = "example_runs/simulated_lg3_counts_drift.csv";
+  const std::string cal = " --calibration example_runs/calibration.json";
+  auto expect_2 = [](const Run& r, const std::string& words) {
+    CHECK(r.code == 2);
+    CHECK(r.out.empty());
+    INFO(r.err);
+    CHECK(r.err.find(words) != std::string::npos);
+  };
+  expect_2(run("analyse " + kRuns + " " + kProtocol + " --bootstrap 200 --misread-continuation fair"),
+           "--misread-continuation fair needs --correct-readout");
+  expect_2(run("analyse " + kRuns + " " + kProtocol + " --bootstrap 200" + cal),
+           "is not used: the runs have no photon counts");
+  expect_2(run("analyse " + counts + " " + kProtocol + " --bootstrap 200 --correct-readout --threshold 3" + cal),
+           "hold at its threshold 2 only");
+  expect_2(run("analyse " + counts + " " + kProtocol + " --bootstrap 200 --correct-readout" + cal +
+               " --misread-continuation dark=2"),
+           "must be 'fair' or 'dark=P'");
+  expect_2(run("analyse " + kRuns + " " + kProtocol + " --bootstrap 200 --calibration no_such_file.json"),
+           "no_such_file.json");
+  // A protocol without detection errors gives the correction nothing to invert.
+  json p = json::parse(slurp(std::string(MACROREAL_SOURCE_DIR) + "/protocols/lg3_thermal.json"));
+  p.erase("detection");
+  const fs::path pf = temp_dir() / "no_detection.json";
+  std::ofstream(pf, std::ios::binary) << p.dump(2);
+  expect_2(run("analyse " + kRuns + " --protocol '" + pf.string() + "' --bootstrap 200 --correct-readout"),
+           "--correct-readout needs error rates");
+}
