@@ -526,7 +526,7 @@ class CsvParser {
     Decimal t;
     const std::size_t time_len = static_cast<std::size_t>(time_e - time_b);
     // The one-pass parser reads the 16 bytes that end at the field's end.
-    if (time_len > 0 && !(time_e - 16 >= begin_ && parse_time_right_aligned(std::string_view(time_b, time_len), t)) &&
+    if (time_len > 0 && !(time_e - begin_ >= 16 && parse_time_right_aligned(std::string_view(time_b, time_len), t)) &&
         !parse_time(std::string_view(time_b, time_len), t))
       return false;
 
