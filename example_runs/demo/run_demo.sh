@@ -22,7 +22,7 @@ step "$m" optimise $d/protocol_start.json --objective significance --budget-shot
   --free angle,phase --max-evaluations 4000 --seed 1 -o $d/protocol_designed.json >$d/optimise.txt
 # 3. Plan: shots per sequence for the LG test at alpha = 0.001 with power 0.9.
 step "$m" plan $d/protocol_designed.json --alpha 0.001 --power 0.9 --cycle-time-s 0.004,0.0002 \
-  -o $d/allocation.json --power-curve $d/power_curve.csv >$d/plan.txt
+  -o $d/allocation.json --power-curve $d/power_curve.csv --figures $d/figures >$d/plan.txt
 # 4. Simulated runs (invented data) from the plan, with a fixed seed; the plan sizes the LG
 #    test only, so the NSIT control B (alone) gets 2500 shots of its own.
 step "$m" simulate $d/protocol_designed.json --allocation $d/allocation.json --shots 2500 --seed 2026 \
