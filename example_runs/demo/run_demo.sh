@@ -30,6 +30,6 @@ step "$m" simulate $d/protocol_designed.json --allocation $d/allocation.json --s
 # 5. The analysis of those runs; --check lg makes the script fail (exit code 1) if the LG test
 #    does not reach alpha = 0.05 (the NSIT test is the invasiveness control: not checked).
 step "$m" analyse $d/runs.csv --protocol $d/protocol_designed.json --bootstrap 2000 --seed 7 \
-  --check lg -o $d/analysis.txt
+  --check lg --figures $d/figures -o $d/analysis.txt
 step "$m" analyse $d/runs.csv --protocol $d/protocol_designed.json --bootstrap 2000 --seed 7 \
   --json -o $d/analysis.json
