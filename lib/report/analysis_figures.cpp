@@ -1,4 +1,5 @@
 #include "report/analysis_figures.hpp"
+#include "report/text_layout.hpp"
 
 #include <algorithm>
 #include <cctype>
@@ -14,15 +15,9 @@ namespace macroreal {
 
 namespace {
 
-std::string num(double x, int digits) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", digits, x);
-  return buf;
-}
-
 std::string percent(double level) {
   const double x = 100.0 * level;
-  return num(x, std::abs(x - std::round(x)) < 1e-9 ? 0 : 1) + " %";
+  return detail::fixed_decimals(x, std::abs(x - std::round(x)) < 1e-9 ? 0 : 1) + " %";
 }
 
 const QuantityEstimate* estimate_of(const AnalysisResult& r, const std::string& name) {
@@ -110,7 +105,7 @@ std::optional<AnalysisFigure> lg_figure(const AnalysisResult& r) {
   if (same_bound) {
     FigureSeries b;
     b.kind = FigureSeries::Kind::horizontal_line;
-    b.label = "macrorealist bound K = " + num(r.leggett_garg.front().bound, 0);
+    b.label = "macrorealist bound K = " + detail::fixed_decimals(r.leggett_garg.front().bound, 0);
     b.dashed = true;
     b.y = {r.leggett_garg.front().bound};
     f.series.push_back(b);
@@ -268,14 +263,14 @@ std::optional<AnalysisFigure> bootstrap_figure(const AnalysisResult& r, const Qu
   f.series.push_back(h);
   FigureSeries est;
   est.kind = FigureSeries::Kind::vertical_line;
-  est.label = "estimate " + num(q.estimate, 4);
+  est.label = "estimate " + detail::fixed_decimals(q.estimate, 4);
   est.colour = PaletteColour::black;
   est.x = {q.estimate};
   f.series.push_back(est);
   if (q.ci.valid) {
     FigureSeries lo;
     lo.kind = FigureSeries::Kind::vertical_line;
-    lo.label = percent(r.level) + " " + q.ci.method + " interval [" + num(q.ci.lo, 4) + ", " + num(q.ci.hi, 4) + "]";
+    lo.label = percent(r.level) + " " + q.ci.method + " interval [" + detail::fixed_decimals(q.ci.lo, 4) + ", " + detail::fixed_decimals(q.ci.hi, 4) + "]";
     lo.colour = PaletteColour::vermillion;
     lo.dashed = true;
     lo.x = {q.ci.lo};

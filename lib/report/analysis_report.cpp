@@ -14,30 +14,13 @@ using ojson = nlohmann::ordered_json;
 
 ojson number(double x) { return std::isfinite(x) ? ojson(x) : ojson(nullptr); }
 
-std::string num(double x, int digits = 4) {
-  if (!std::isfinite(x)) return "n/a";
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", digits, x);
-  std::string s = buf;
-  if (s.find_first_not_of("-0.") == std::string::npos && s[0] == '-') s.erase(0, 1);
-  return s;
-}
-
-std::string pval(double p) {
-  if (!std::isfinite(p)) return "n/a";
-  char buf[64];
-  if (p < 1e-4) std::snprintf(buf, sizeof buf, "%.2e", p);
-  else std::snprintf(buf, sizeof buf, "%.4f", p);
-  return buf;
-}
-
 std::string interval(const IntervalEstimate& e) {
   if (!e.valid) return "n/a";
   // Appended piecewise: `"[" + std::string` trips GCC 12's false -Wrestrict (GCC PR 105329).
   std::string s(1, '[');
-  s += num(e.lo);
+  s += detail::estimate_text(e.lo);
   s += ", ";
-  s += num(e.hi);
+  s += detail::estimate_text(e.hi);
   s += ']';
   return s;
 }
@@ -312,7 +295,7 @@ std::string analysis_json_text(const AnalysisResult& r) { return analysis_json(r
 
 std::string analysis_text(const AnalysisResult& r) {
   std::string out;
-  const std::string lvl = num(100.0 * r.level, 1) + " %";
+  const std::string lvl = detail::estimate_text(100.0 * r.level, 1) + " %";
   out += "macroreal analyse\n";
   out += wrap(r.title, "  protocol  " + r.protocol_file + ": ", "            ");
   out += "  runs      " + r.runs_file + "\n";
@@ -330,7 +313,7 @@ std::string analysis_text(const AnalysisResult& r) {
   {
     Table t({false, true, false});
     t.row({"sequence", "shots", ""});
-    for (const auto& s : r.sequences) t.row({s.name, num(s.shots, 0), s.listed ? "" : "(generated name)"});
+    for (const auto& s : r.sequences) t.row({s.name, detail::estimate_text(s.shots, 0), s.listed ? "" : "(generated name)"});
     out += t.str();
   }
   if (!r.unobserved.empty()) out += "  listed but without shots: " + join(r.unobserved, ", ") + "\n";
@@ -342,7 +325,7 @@ std::string analysis_text(const AnalysisResult& r) {
     t.row({"quantity", "estimate", "se", r.estimates.empty() ? "" : r.estimates.front().ci.method + " (default)",
            "percentile", "basic", "studentized"});
     for (const auto& q : r.estimates) {
-      std::vector<std::string> row = {q.name, num(q.estimate), num(q.std_error), interval(q.ci)};
+      std::vector<std::string> row = {q.name, detail::estimate_text(q.estimate), detail::estimate_text(q.std_error), interval(q.ci)};
       for (const char* m : {"percentile", "basic", "studentized"})
         for (const auto& iv : q.intervals)
           if (iv.method == m) row.push_back(interval(iv));
@@ -372,12 +355,12 @@ std::string analysis_text(const AnalysisResult& r) {
     t.row({"test", "method", "statistic", "p-value", "sigma", "note"});
     for (const auto& a : r.leggett_garg)
       for (const auto& tr : a.tests)
-        t.row({a.label, tr.method + (tr.method == a.primary_method ? " *" : ""), num(tr.statistic),
-               pval(tr.p_value), num(tr.sigma, 2), tr.note});
+        t.row({a.label, tr.method + (tr.method == a.primary_method ? " *" : ""), detail::estimate_text(tr.statistic),
+               detail::p_value_text(tr.p_value), detail::estimate_text(tr.sigma, 2), tr.note});
     for (const auto& a : r.nsit)
       for (const auto& tr : a.tests)
-        t.row({a.label, tr.method + (tr.method == a.primary_method ? " *" : ""), num(tr.statistic),
-               pval(tr.p_value), num(tr.sigma, 2), tr.note});
+        t.row({a.label, tr.method + (tr.method == a.primary_method ? " *" : ""), detail::estimate_text(tr.statistic),
+               detail::p_value_text(tr.p_value), detail::estimate_text(tr.sigma, 2), tr.note});
     out += t.str();
     out += "  * the p-value that enters the multiplicity adjustment; sigma = Phi^-1(1 - p)\n";
   }
@@ -389,7 +372,7 @@ std::string analysis_text(const AnalysisResult& r) {
     Table t({false, false, true, true, true});
     t.row({"test", "method", "p-value", "Holm", "BH"});
     for (const auto& e : r.multiplicity.entries)
-      t.row({e.label, e.method, pval(e.p_value), pval(e.holm), pval(e.benjamini_hochberg)});
+      t.row({e.label, e.method, detail::p_value_text(e.p_value), detail::p_value_text(e.holm), detail::p_value_text(e.benjamini_hochberg)});
     out += t.str();
   }
   if (r.multiplicity.max_statistic) {
@@ -397,7 +380,7 @@ std::string analysis_text(const AnalysisResult& r) {
     for (std::size_t k = 0; k < m.adjusted_p.size(); ++k)
       out += "  max-statistic " +
              (k < r.multiplicity.max_statistic_labels.size() ? r.multiplicity.max_statistic_labels[k] : "") +
-             ": T = " + num(m.statistic[k]) + ", adjusted p = " + pval(m.adjusted_p[k]) + "\n";
+             ": T = " + detail::estimate_text(m.statistic[k]) + ", adjusted p = " + detail::p_value_text(m.adjusted_p[k]) + "\n";
   }
   out += wrap(r.multiplicity.max_statistic_note, "  max-statistic: ", "    ");
   out += "\n";
@@ -408,8 +391,8 @@ std::string analysis_text(const AnalysisResult& r) {
     any_extra = true;
     if (a.invasiveness) {
       const auto& b = *a.invasiveness;
-      out += "  " + a.label + ": NSIT bound on K " + num(b.bound) + " (upper limit " + num(b.bound_upper) +
-             ", pairs " + join(b.pairs, ", ") + "); K lower limit " + num(b.k_lower) + " -> " +
+      out += "  " + a.label + ": NSIT bound on K " + detail::estimate_text(b.bound) + " (upper limit " + detail::estimate_text(b.bound_upper) +
+             ", pairs " + join(b.pairs, ", ") + "); K lower limit " + detail::estimate_text(b.k_lower) + " -> " +
              (b.exceeds ? "exceeds" : "does not exceed") + "\n";
       out += wrap("assumes " + b.assumption, "    ", "    ");
     } else {
@@ -417,9 +400,9 @@ std::string analysis_text(const AnalysisResult& r) {
     }
     if (a.model) {
       const auto& m = *a.model;
-      out += "  " + a.label + ": model K = " + num(m.K_model) + ", classical K = " +
-             (m.K_classical ? num(*m.K_classical) : "n/a") + ", kicked classical K = " +
-             (m.K_classical_kicked ? num(*m.K_classical_kicked) : "n/a") + "\n";
+      out += "  " + a.label + ": model K = " + detail::estimate_text(m.K_model) + ", classical K = " +
+             (m.K_classical ? detail::estimate_text(*m.K_classical) : "n/a") + ", kicked classical K = " +
+             (m.K_classical_kicked ? detail::estimate_text(*m.K_classical_kicked) : "n/a") + "\n";
     }
   }
   if (any_extra) out += "\n";
@@ -437,13 +420,13 @@ std::string analysis_text(const AnalysisResult& r) {
     Table t({false, true, true, true, true, true, false});
     t.row({"sequence", "split time_s", "shots 1st", "shots 2nd", "chi-square", "p-value", "note"});
     for (const auto& s : r.drift.sequences)
-      t.row({s.name, num(s.split_time_s, 3), num(s.first_half, 0), num(s.second_half, 0),
-             s.df > 0 ? num(s.chi_square, 2) + " (" + std::to_string(s.df) + " df)" : "n/a",
-             s.df > 0 ? pval(s.p_value) : "n/a",
+      t.row({s.name, detail::estimate_text(s.split_time_s, 3), detail::estimate_text(s.first_half, 0), detail::estimate_text(s.second_half, 0),
+             s.df > 0 ? detail::estimate_text(s.chi_square, 2) + " (" + std::to_string(s.df) + " df)" : "n/a",
+             s.df > 0 ? detail::p_value_text(s.p_value) : "n/a",
              s.note.empty() ? (s.small_expected ? "expected count < 5" : "") : s.note});
     out += t.str();
-    out += "  all: chi-square " + num(r.drift.chi_square, 2) + " on " + std::to_string(r.drift.df) +
-           " df, p = " + pval(r.drift.p_value) + "\n";
+    out += "  all: chi-square " + detail::estimate_text(r.drift.chi_square, 2) + " on " + std::to_string(r.drift.df) +
+           " df, p = " + detail::p_value_text(r.drift.p_value) + "\n";
   } else {
     out += "  not checked: " + r.drift.not_checked + "\n";
   }
@@ -452,9 +435,9 @@ std::string analysis_text(const AnalysisResult& r) {
   if (r.readout_corrected) {
     const auto& c = *r.readout_corrected;
     out += "Readout-corrected estimates (misassignment inverted; " + lvl + " intervals)\n";
-    out += wrap("P(read bright | dark) = " + num(c.dark_read_bright, 6) + " (se " + num(c.dark_read_bright_se, 6) +
-                    "), P(read dark | bright) = " + num(c.bright_read_dark, 6) + " (se " +
-                    num(c.bright_read_dark_se, 6) + ") from " + c.rates_source,
+    out += wrap("P(read bright | dark) = " + detail::estimate_text(c.dark_read_bright, 6) + " (se " + detail::estimate_text(c.dark_read_bright_se, 6) +
+                    "), P(read dark | bright) = " + detail::estimate_text(c.bright_read_dark, 6) + " (se " +
+                    detail::estimate_text(c.bright_read_dark_se, 6) + ") from " + c.rates_source,
                 "  rates     ", "            ");
     out += wrap(c.uncertainty, "  spread    ", "            ");
     if (r.readout == Readout::destructive)
@@ -466,14 +449,14 @@ std::string analysis_text(const AnalysisResult& r) {
     t.row({"quantity", "raw", "corrected", "se", c.estimates.empty() ? "" : c.estimates.front().ci.method + " (rates redrawn)",
            "rates fixed"});
     for (const auto& e : c.estimates)
-      t.row({e.name, num(e.raw), num(e.estimate), num(e.std_error), corrected_interval_text(e.ci),
+      t.row({e.name, detail::estimate_text(e.raw), detail::estimate_text(e.estimate), detail::estimate_text(e.std_error), corrected_interval_text(e.ci),
              corrected_interval_text(e.ci_rates_fixed)});
     out += t.str();
     Table tt({false, false, true, true, true});
     tt.row({"test", "method", "statistic", "p-value", "sigma"});
     for (const auto* group : {&c.leggett_garg, &c.nsit})
       for (const auto& g : *group)
-        for (const auto& tr : g.tests) tt.row({g.label, tr.method, num(tr.statistic), pval(tr.p_value), num(tr.sigma, 2)});
+        for (const auto& tr : g.tests) tt.row({g.label, tr.method, detail::estimate_text(tr.statistic), detail::p_value_text(tr.p_value), detail::estimate_text(tr.sigma, 2)});
     out += tt.str();
     for (const auto* group : {&c.leggett_garg, &c.nsit})
       for (const auto& g : *group) out += wrap(g.verdict, "  " + g.label + ": ", "    ");

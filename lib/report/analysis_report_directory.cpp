@@ -7,6 +7,7 @@
 
 #include "core/error.hpp"
 #include "core/sha256.hpp"
+#include "report/text_layout.hpp"
 
 namespace macroreal {
 
@@ -14,34 +15,17 @@ namespace {
 
 namespace fs = std::filesystem;
 
-std::string num(double x, int digits = 4) {
-  if (!std::isfinite(x)) return "n/a";
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", digits, x);
-  std::string s = buf;
-  if (s.find_first_not_of("-0.") == std::string::npos && s[0] == '-') s.erase(0, 1);
-  return s;
-}
-
-std::string pval(double p) {
-  if (!std::isfinite(p)) return "n/a";
-  char buf[64];
-  if (p < 1e-4) std::snprintf(buf, sizeof buf, "%.2e", p);
-  else std::snprintf(buf, sizeof buf, "%.4f", p);
-  return buf;
-}
-
 std::string sigma_text(const TestResult& t) {
   if (!std::isfinite(t.sigma)) return "n/a";
-  return (t.sigma_capped ? ">= " : "") + num(t.sigma, 2);
+  return (t.sigma_capped ? ">= " : "") + detail::estimate_text(t.sigma, 2);
 }
 
 std::string interval_text(const IntervalEstimate& e) {
   if (!e.valid) return "n/a";
   std::string s(1, '[');
-  s += num(e.lo);
+  s += detail::estimate_text(e.lo);
   s += ", ";
-  s += num(e.hi);
+  s += detail::estimate_text(e.hi);
   s += ']';
   return s;
 }
@@ -74,8 +58,8 @@ const QuantityEstimate* estimate_of(const AnalysisResult& r, const std::string& 
 void tests_table(std::string& md, const std::vector<TestResult>& tests, const std::string& primary) {
   md += "| method | statistic | p-value | sigma | note |\n|---|---|---|---|---|\n";
   for (const auto& t : tests)
-    md += "| " + t.method + (t.method == primary ? " (primary)" : "") + " | " + num(t.statistic) + " | " +
-          pval(t.p_value) + " | " + sigma_text(t) + " | " + cell(t.note) + " |\n";
+    md += "| " + t.method + (t.method == primary ? " (primary)" : "") + " | " + detail::estimate_text(t.statistic) + " | " +
+          detail::p_value_text(t.p_value) + " | " + sigma_text(t) + " | " + cell(t.note) + " |\n";
   md += "\n";
 }
 
@@ -89,9 +73,9 @@ void all_intervals(std::string& md, const QuantityEstimate& q) {
 std::string corrected_interval_text(const CorrectedInterval& e) {
   if (!e.valid || !std::isfinite(e.lo) || !std::isfinite(e.hi)) return "n/a";
   std::string s(1, '[');
-  s += num(e.lo);
+  s += detail::estimate_text(e.lo);
   s += ", ";
-  s += num(e.hi);
+  s += detail::estimate_text(e.hi);
   s += ']';
   return s;
 }
@@ -107,22 +91,22 @@ std::string readout_section(const AnalysisResult& r) {
   }
   const ReadoutCorrectedAnalysis& c = *r.readout_corrected;
   md += "The estimates and tests above are raw (detector results as recorded). Misassignment-corrected values "
-        "follow, with rates P(read bright | dark) = " + num(c.dark_read_bright, 6) + " (uncertainty " +
-        num(c.dark_read_bright_se, 6) + ") and P(read dark | bright) = " + num(c.bright_read_dark, 6) +
-        " (uncertainty " + num(c.bright_read_dark_se, 6) + ") from " + c.rates_source + "; " + c.uncertainty +
+        "follow, with rates P(read bright | dark) = " + detail::estimate_text(c.dark_read_bright, 6) + " (uncertainty " +
+        detail::estimate_text(c.dark_read_bright_se, 6) + ") and P(read dark | bright) = " + detail::estimate_text(c.bright_read_dark, 6) +
+        " (uncertainty " + detail::estimate_text(c.bright_read_dark_se, 6) + ") from " + c.rates_source + "; " + c.uncertainty +
         ". Continuation after a misread bright: " + c.continuation + ". Default interval: " + c.default_interval +
         ", B = " + std::to_string(c.replicates) + ", seed " + std::to_string(c.seed) + ".\n\n";
   md += "| quantity | raw | corrected | standard error | interval | interval, rates fixed | status |\n"
         "|---|---|---|---|---|---|---|\n";
   for (const auto& e : c.estimates)
-    md += "| " + code(e.name) + " | " + num(e.raw) + " | " + num(e.estimate) + " | " + num(e.std_error) + " | " +
+    md += "| " + code(e.name) + " | " + detail::estimate_text(e.raw) + " | " + detail::estimate_text(e.estimate) + " | " + detail::estimate_text(e.std_error) + " | " +
           corrected_interval_text(e.ci) + " (" + e.ci.method + ") | " + corrected_interval_text(e.ci_rates_fixed) + " | " +
           cell(e.status) + " |\n";
   md += "\n";
   for (const auto* group : {&c.leggett_garg, &c.nsit})
     for (const auto& t : *group) {
-      md += "Corrected " + t.label + ": " + code(t.quantity) + " raw " + num(t.raw) + ", corrected " + num(t.estimate) +
-            " (standard error " + num(t.std_error) + ", bound " + num(t.bound, 0) + ").\n\n";
+      md += "Corrected " + t.label + ": " + code(t.quantity) + " raw " + detail::estimate_text(t.raw) + ", corrected " + detail::estimate_text(t.estimate) +
+            " (standard error " + detail::estimate_text(t.std_error) + ", bound " + detail::estimate_text(t.bound, 0) + ").\n\n";
       tests_table(md, t.tests, t.tests.empty() ? std::string() : t.tests.front().method);
       if (!t.verdict.empty()) md += t.verdict + "\n\n";
     }
@@ -137,12 +121,12 @@ std::string readout_section(const AnalysisResult& r) {
 
 std::string latex_number(double x, int digits = 4) {
   if (!std::isfinite(x)) return "---";
-  return "$" + num(x, digits) + "$";
+  return "$" + detail::estimate_text(x, digits) + "$";
 }
 
 std::string latex_p(double p) {
   if (!std::isfinite(p)) return "---";
-  if (p >= 1e-4) return "$" + pval(p) + "$";
+  if (p >= 1e-4) return "$" + detail::p_value_text(p) + "$";
   char buf[64];
   std::snprintf(buf, sizeof buf, "%.2e", p);
   std::string s = buf;
@@ -154,7 +138,7 @@ std::string latex_p(double p) {
 
 std::string latex_interval(const IntervalEstimate& e) {
   if (!e.valid) return "---";
-  return "$[" + num(e.lo) + ", " + num(e.hi) + "]$";
+  return "$[" + detail::estimate_text(e.lo) + ", " + detail::estimate_text(e.hi) + "]$";
 }
 
 void write_file(const fs::path& p, const std::string& text) {
@@ -223,7 +207,7 @@ std::string analysis_report_markdown(const AnalysisResult& r, const AnalysisFigu
   md += "| setting | value |\n|---|---|\n";
   md += "| seed | " + std::to_string(r.seed) + " |\n";
   md += "| bootstrap replicates B | " + std::to_string(r.replicates) + " |\n";
-  md += "| confidence level | " + num(r.level, 4) + " (two-sided intervals; tests use alpha = " + num(1.0 - r.level, 4) + ") |\n";
+  md += "| confidence level | " + detail::estimate_text(r.level, 4) + " (two-sided intervals; tests use alpha = " + detail::estimate_text(1.0 - r.level, 4) + ") |\n";
   md += "| default interval | " + cell(r.default_interval) + " |\n";
   md += "| readout | " + to_string(r.readout) + " |\n\n";
 
@@ -246,7 +230,7 @@ std::string analysis_report_markdown(const AnalysisResult& r, const AnalysisFigu
   }
   md += "| sequence | shots | in the protocol file |\n|---|---|---|\n";
   for (const auto& s : r.sequences)
-    md += "| " + code(s.name) + " | " + num(s.shots, 0) + " | " + (s.listed ? "listed" : "generated name") + " |\n";
+    md += "| " + code(s.name) + " | " + detail::estimate_text(s.shots, 0) + " | " + (s.listed ? "listed" : "generated name") + " |\n";
   md += "\n";
   if (!r.unobserved.empty()) {
     md += "Listed sequences without any shot:";
@@ -258,7 +242,7 @@ std::string analysis_report_markdown(const AnalysisResult& r, const AnalysisFigu
         "the default one (" + cell(r.default_interval) + ") at " + level_text(r.level) + ".\n\n";
   md += "| quantity | estimate | standard error | interval | method | status |\n|---|---|---|---|---|---|\n";
   for (const auto& q : r.estimates)
-    md += "| " + code(q.name) + " | " + num(q.estimate) + " | " + num(q.std_error) + " | " + interval_text(q.ci) + " | " +
+    md += "| " + code(q.name) + " | " + detail::estimate_text(q.estimate) + " | " + detail::estimate_text(q.std_error) + " | " + interval_text(q.ci) + " | " +
           q.ci.method + " | " + cell(q.status + (q.note.empty() ? "" : ": " + q.note)) + " |\n";
   md += "\n";
   for (const auto& a : r.leggett_garg)
@@ -270,37 +254,37 @@ std::string analysis_report_markdown(const AnalysisResult& r, const AnalysisFigu
         "one-sided (H0: K <= bound), NSIT tests two-sided (H0: S = 0) unless marked otherwise.\n\n";
   for (const auto& a : r.leggett_garg) {
     md += "### " + a.label + "\n\n";
-    md += code(a.quantity) + " = " + num(a.K) + " (standard error " + num(a.std_error) + "; non-pooled estimate " +
-          num(a.K_linear) + " used by the finite-sample and bootstrap tests), macrorealist bound " + num(a.bound, 0) + ".\n\n";
+    md += code(a.quantity) + " = " + detail::estimate_text(a.K) + " (standard error " + detail::estimate_text(a.std_error) + "; non-pooled estimate " +
+          detail::estimate_text(a.K_linear) + " used by the finite-sample and bootstrap tests), macrorealist bound " + detail::estimate_text(a.bound, 0) + ".\n\n";
     tests_table(md, a.tests, a.primary_method);
     md += a.verdict + "\n\n";
     if (a.invasiveness) {
       const auto& b = *a.invasiveness;
-      md += "Invasiveness bound (NSIT controls): K <= " + num(b.bound) + " from the estimates, K <= " + num(b.bound_upper) +
+      md += "Invasiveness bound (NSIT controls): K <= " + detail::estimate_text(b.bound) + " from the estimates, K <= " + detail::estimate_text(b.bound_upper) +
             " at the upper confidence limits of |S| (pairs";
       for (std::size_t i = 0; i < b.pairs.size(); ++i)
-        md += (i ? ", " : " ") + b.pairs[i] + " |S| <= " + num(b.s_upper[i]);
-      md += "); lower confidence limit of K " + num(b.k_lower) + (b.exceeds ? " exceeds" : " does not exceed") +
+        md += (i ? ", " : " ") + b.pairs[i] + " |S| <= " + detail::estimate_text(b.s_upper[i]);
+      md += "); lower confidence limit of K " + detail::estimate_text(b.k_lower) + (b.exceeds ? " exceeds" : " does not exceed") +
             " it. Assumption: " + b.assumption + "\n\n";
     } else {
       md += "Invasiveness bound: not available (" + a.invasiveness_unavailable + ").\n\n";
     }
     if (a.model) {
       const auto& m = *a.model;
-      md += "Model comparison: the protocol's model gives K = " + num(m.K_model) + "; classical non-invasive K = " +
-            (m.K_classical ? num(*m.K_classical) : std::string("n/a")) + ", kicked classical K = " +
-            (m.K_classical_kicked ? num(*m.K_classical_kicked) : std::string("n/a")) + ".";
+      md += "Model comparison: the protocol's model gives K = " + detail::estimate_text(m.K_model) + "; classical non-invasive K = " +
+            (m.K_classical ? detail::estimate_text(*m.K_classical) : std::string("n/a")) + ", kicked classical K = " +
+            (m.K_classical_kicked ? detail::estimate_text(*m.K_classical_kicked) : std::string("n/a")) + ".";
       if (m.versus_kicked)
-        md += " Test against the kicked classical K (" + m.versus_kicked->method + "): p = " + pval(m.versus_kicked->p_value) +
+        md += " Test against the kicked classical K (" + m.versus_kicked->method + "): p = " + detail::p_value_text(m.versus_kicked->p_value) +
               ", sigma = " + sigma_text(*m.versus_kicked) + ".";
       md += " " + m.verdict + "\n\n";
     }
   }
   for (const auto& a : r.nsit) {
     md += "### " + a.label + "\n\n";
-    md += code(a.quantity) + " = " + num(a.S) + " (standard error " + num(a.std_error) + ")";
-    if (a.S_model) md += "; the model gives S = " + num(*a.S_model);
-    if (a.margin) md += "; equivalence margin " + num(*a.margin) + " (from " + a.margin_source + ")";
+    md += code(a.quantity) + " = " + detail::estimate_text(a.S) + " (standard error " + detail::estimate_text(a.std_error) + ")";
+    if (a.S_model) md += "; the model gives S = " + detail::estimate_text(*a.S_model);
+    if (a.margin) md += "; equivalence margin " + detail::estimate_text(*a.margin) + " (from " + a.margin_source + ")";
     md += ".\n\n";
     tests_table(md, a.tests, a.primary_method);
     md += a.verdict + "\n\n";
@@ -310,8 +294,8 @@ std::string analysis_report_markdown(const AnalysisResult& r, const AnalysisFigu
   if (!r.multiplicity.entries.empty()) {
     md += "| test | method | p-value | Holm | Benjamini-Hochberg |\n|---|---|---|---|---|\n";
     for (const auto& e : r.multiplicity.entries)
-      md += "| " + e.label + " | " + e.method + " | " + pval(e.p_value) + " | " + pval(e.holm) + " | " +
-            pval(e.benjamini_hochberg) + " |\n";
+      md += "| " + e.label + " | " + e.method + " | " + detail::p_value_text(e.p_value) + " | " + detail::p_value_text(e.holm) + " | " +
+            detail::p_value_text(e.benjamini_hochberg) + " |\n";
     md += "\n";
   }
   if (r.multiplicity.max_statistic) {
@@ -321,7 +305,7 @@ std::string analysis_report_markdown(const AnalysisResult& r, const AnalysisFigu
     md += "| test | statistic | adjusted p |\n|---|---|---|\n";
     for (std::size_t i = 0; i < m.statistic.size(); ++i)
       md += "| " + (i < r.multiplicity.max_statistic_labels.size() ? r.multiplicity.max_statistic_labels[i] : std::to_string(i + 1)) +
-            " | " + num(m.statistic[i]) + " | " + pval(m.adjusted_p[i]) + " |\n";
+            " | " + detail::estimate_text(m.statistic[i]) + " | " + detail::p_value_text(m.adjusted_p[i]) + " |\n";
     md += "\n";
   } else {
     md += "Max-statistic calibration: " + r.multiplicity.max_statistic_note + ".\n\n";
@@ -354,7 +338,7 @@ std::string analysis_report_markdown(const AnalysisResult& r, const AnalysisFigu
 std::string analysis_results_latex(const AnalysisResult& r) {
   std::string t;
   t += "% Results of macroreal analyse: " + latex_escape(r.title) + "\n";
-  t += "% Seed " + std::to_string(r.seed) + ", B = " + std::to_string(r.replicates) + ", level " + num(r.level, 4) + ".\n";
+  t += "% Seed " + std::to_string(r.seed) + ", B = " + std::to_string(r.replicates) + ", level " + detail::estimate_text(r.level, 4) + ".\n";
   t += "% Needs \\usepackage{booktabs}. Generated; the tests check its structure, they do not compile it.\n";
   t += "\\begin{table}\n\\centering\n";
   t += "\\caption{Estimates with " + latex_escape(level_text(r.level)) + " intervals (default: " +
@@ -405,7 +389,7 @@ std::string analysis_results_latex(const AnalysisResult& r) {
         for (const auto& x : r.readout_corrected->estimates)
           if (x.name == c.quantity) e = &x;
         const std::string iv = e && e->ci.valid && std::isfinite(e->ci.lo) && std::isfinite(e->ci.hi)
-                                   ? "$[" + num(e->ci.lo) + ", " + num(e->ci.hi) + "]$"
+                                   ? "$[" + detail::estimate_text(e->ci.lo) + ", " + detail::estimate_text(e->ci.hi) + "]$"
                                    : std::string("---");
         bool first = true;
         for (const auto& x : c.tests) {

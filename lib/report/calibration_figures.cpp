@@ -1,4 +1,5 @@
 #include "report/calibration_figures.hpp"
+#include "report/text_layout.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -9,12 +10,6 @@
 namespace macroreal {
 
 namespace {
-
-std::string num(double v, int digits) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", digits, v);
-  return buf;
-}
 
 std::string sci(double v) {
   char buf[64];
@@ -50,7 +45,7 @@ FittedCounts fitted_counts(const CountHistograms& h, const CalibrationResult& r,
 Figure count_histogram_figure(const CountHistograms& h, const CalibrationResult& r) {
   const FittedCounts c = fitted_counts(h, r);
   Figure f;
-  f.title = "Photon counts of " + num(c.shots, 0) + " calibration shots and the fitted mixture";
+  f.title = "Photon counts of " + detail::fixed_decimals(c.shots, 0) + " calibration shots and the fitted mixture";
   f.x_label = "photon counts per detection window" +
               (r.window_s > 0 ? " (" + sci(r.window_s) + " s)" : std::string());
   f.y_label = "shots";
@@ -90,13 +85,13 @@ Figure count_histogram_figure(const CountHistograms& h, const CalibrationResult&
   total.x = xs;
   total.y = clipped(c.total);
   FigureSeries dark;
-  dark.label = "dark component, rate " + num(r.fit.model.dark_rate, 3);
+  dark.label = "dark component, rate " + detail::fixed_decimals(r.fit.model.dark_rate, 3);
   dark.colour = PaletteColour::sky_blue;
   dark.dashed = true;
   dark.x = xs;
   dark.y = clipped(c.dark);
   FigureSeries bright;
-  bright.label = "bright component, rate " + num(r.fit.model.bright_rate, 3);
+  bright.label = "bright component, rate " + detail::fixed_decimals(r.fit.model.bright_rate, 3);
   bright.colour = PaletteColour::orange;
   bright.dashed = true;
   bright.x = xs;

@@ -1,4 +1,5 @@
 #include "report/plan_figures.hpp"
+#include "report/text_layout.hpp"
 
 #include <cstdio>
 
@@ -6,22 +7,12 @@
 
 namespace macroreal {
 
-namespace {
-
-std::string num(double v, int digits) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", digits, v);
-  return buf;
-}
-
-}  // namespace
-
 Figure power_figure(const CampaignPlan& plan, const std::optional<PlanVerification>& verification) {
   if (!plan.feasible || plan.power_curve.empty())
     throw DomainError("figures: the plan for " + plan.quantity + " is not feasible (" +
                       plan.infeasible_reason + "), so it has no power curve");
   Figure f;
-  f.title = "Power of the test of " + plan.quantity + " at level " + num(plan.alpha, 3) +
+  f.title = "Power of the test of " + plan.quantity + " at level " + detail::fixed_decimals(plan.alpha, 3) +
             " against total shots";
   f.x_label = "total shots (all sequences, the plan's allocation)";
   f.y_label = "power (probability)";
@@ -34,21 +25,21 @@ Figure power_figure(const CampaignPlan& plan, const std::optional<PlanVerificati
   }
   FigureSeries target;
   target.kind = FigureSeries::Kind::horizontal_line;
-  target.label = "requested power " + num(plan.target_power, 2);
+  target.label = "requested power " + detail::fixed_decimals(plan.target_power, 2);
   target.colour = PaletteColour::black;
   target.dashed = true;
   target.y = {plan.target_power};
   FigureSeries planned;
   planned.kind = FigureSeries::Kind::vertical_line;
   planned.label = "planned: " + std::to_string(plan.total_shots) + " shots, " +
-                  (plan.lab_seconds < 360.0 ? num(plan.lab_seconds, 1) + " s"
-                                            : num(plan.lab_seconds / 3600.0, 2) + " h") +
+                  (plan.lab_seconds < 360.0 ? detail::fixed_decimals(plan.lab_seconds, 1) + " s"
+                                            : detail::fixed_decimals(plan.lab_seconds / 3600.0, 2) + " h") +
                   " of lab time";
   planned.colour = PaletteColour::vermillion;
   planned.x = {static_cast<double>(plan.total_shots)};
   FigureSeries reached;
   reached.kind = FigureSeries::Kind::points;
-  reached.label = "power at the rounded shots " + num(plan.planned_power, 3);
+  reached.label = "power at the rounded shots " + detail::fixed_decimals(plan.planned_power, 3);
   reached.colour = PaletteColour::vermillion;
   reached.x = {static_cast<double>(plan.total_shots)};
   reached.y = {plan.planned_power};
@@ -57,7 +48,7 @@ Figure power_figure(const CampaignPlan& plan, const std::optional<PlanVerificati
     FigureSeries sim;
     sim.kind = FigureSeries::Kind::error_bars;
     sim.label = "simulated: " + std::to_string(verification->campaigns) + " campaigns, " +
-                num(100 * verification->level, 0) + " % Clopper-Pearson";
+                detail::fixed_decimals(100 * verification->level, 0) + " % Clopper-Pearson";
     sim.colour = PaletteColour::bluish_green;
     // Beside the planned point, so the two markers do not hide each other.
     sim.x = {static_cast<double>(plan.total_shots) * 1.02};

@@ -9,12 +9,6 @@ namespace macroreal {
 
 namespace {
 
-std::string fixed(double x, int digits) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", digits, x);
-  return buf;
-}
-
 std::string sci(double x) {
   char buf[64];
   std::snprintf(buf, sizeof buf, "%.4g", x);
@@ -106,10 +100,10 @@ std::string plan_text(const CampaignPlan& plan, const std::optional<PlanVerifica
   out += "  protocol   " + plan.protocol_file + " (model engine: " + plan.engine + ")\n";
   out += "  test       " + plan.test_label + ", " + plan.quantity + " (" + to_string(plan.test) + ")\n";
   out += detail::wrap(plan.method, "  method     ", "             ");
-  out += "  level      alpha = " + fixed(plan.alpha, 3) + ", target power " + fixed(plan.target_power, 3) + "\n";
-  out += "  model      " + plan.quantity + " = " + fixed(plan.model_value, 5) +
-         (plan.test == PlanTest::leggett_garg ? ", bound " + fixed(plan.bound, 0)
-          : plan.margin ? ", margin " + fixed(*plan.margin, 4) : std::string()) + "\n";
+  out += "  level      alpha = " + detail::fixed_decimals(plan.alpha, 3) + ", target power " + detail::fixed_decimals(plan.target_power, 3) + "\n";
+  out += "  model      " + plan.quantity + " = " + detail::fixed_decimals(plan.model_value, 5) +
+         (plan.test == PlanTest::leggett_garg ? ", bound " + detail::fixed_decimals(plan.bound, 0)
+          : plan.margin ? ", margin " + detail::fixed_decimals(*plan.margin, 4) : std::string()) + "\n";
   out += "  cycle      " + sci(plan.cycle.overhead_s) + " s per shot + " + sci(plan.cycle.per_step_s) +
          " s per step run" + (plan.cycle.include_step_times ? " + the protocol's waits" : "") + "\n\n";
   if (!plan.feasible) {
@@ -122,14 +116,14 @@ std::string plan_text(const CampaignPlan& plan, const std::optional<PlanVerifica
              sci(s.seconds_per_shot), std::to_string(s.shots_rounded)});
     out += t.str();
     out += "\n  total      " + std::to_string(plan.total_shots) + " shots, " +
-           fixed(plan.lab_seconds / 3600.0, 3) + " h of lab time (" + sci(plan.lab_seconds) + " s)\n";
-    out += "  power      " + fixed(plan.planned_power, 4) + " (normal approximation at the rounded shots; SE of " +
+           detail::fixed_decimals(plan.lab_seconds / 3600.0, 3) + " h of lab time (" + sci(plan.lab_seconds) + " s)\n";
+    out += "  power      " + detail::fixed_decimals(plan.planned_power, 4) + " (normal approximation at the rounded shots; SE of " +
            plan.quantity + " " + sci(plan.se_model) + ")\n";
     if (verification) {
       const auto& v = *verification;
-      out += "  verified   " + fixed(v.power, 4) + " [" + fixed(v.lo, 4) + ", " + fixed(v.hi, 4) + "] (" +
+      out += "  verified   " + detail::fixed_decimals(v.power, 4) + " [" + detail::fixed_decimals(v.lo, 4) + ", " + detail::fixed_decimals(v.hi, 4) + "] (" +
              std::to_string(v.rejections) + " of " + std::to_string(v.campaigns) +
-             " simulated campaigns rejected; " + fixed(v.level * 100.0, 0) +
+             " simulated campaigns rejected; " + detail::fixed_decimals(v.level * 100.0, 0) +
              "% Clopper-Pearson interval; test: " + v.method + "; seed " + std::to_string(v.seed) + ")\n";
       if (v.undefined > 0)
         out += "             " + std::to_string(v.undefined) +

@@ -1,6 +1,8 @@
 #include "report/text_layout.hpp"
 
 #include <algorithm>
+#include <cmath>
+#include <cstdio>
 #include <sstream>
 
 namespace macroreal::detail {
@@ -39,6 +41,27 @@ std::string wrap(const std::string& text, const std::string& first, const std::s
     empty = false;
   }
   return out + line + "\n";
+}
+
+std::string fixed_decimals(double x, int digits) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", digits, x);
+  return buf;
+}
+
+std::string estimate_text(double x, int digits) {
+  if (!std::isfinite(x)) return "n/a";
+  std::string s = fixed_decimals(x, digits);
+  if (s.find_first_not_of("-0.") == std::string::npos && s[0] == '-') s.erase(0, 1);
+  return s;
+}
+
+std::string p_value_text(double p) {
+  if (!std::isfinite(p)) return "n/a";
+  char buf[64];
+  if (p < 1e-4) std::snprintf(buf, sizeof buf, "%.2e", p);
+  else std::snprintf(buf, sizeof buf, "%.4f", p);
+  return buf;
 }
 
 }  // namespace macroreal::detail

@@ -1,6 +1,6 @@
-// Plain-text layout shared by the readable reports of every command: fixed-width tables
-// (column widths from the content) and word wrapping with hanging indents. Deterministic:
-// the same content gives the same bytes.
+// Plain-text layout shared by the readable reports and figure labels of every command:
+// fixed-width tables (column widths from the content), word wrapping with hanging indents and
+// the number formats. Deterministic: the same content gives the same bytes.
 #pragma once
 
 #include <string>
@@ -24,5 +24,15 @@ class Table {
 // Word wrap at `width` columns; the first line starts with `first`, the others with `rest`.
 std::string wrap(const std::string& text, const std::string& first, const std::string& rest,
                  std::size_t width = 96);
+
+// `x` with `digits` decimals, printf-style ("%.*f").
+std::string fixed_decimals(double x, int digits);
+
+// A reported estimate: "n/a" when not finite, and no "-0.0000" (a sign the rounding made
+// meaningless would read as a direction).
+std::string estimate_text(double x, int digits = 4);
+
+// A p-value: four decimals, scientific below 1e-4 so small values keep their magnitude.
+std::string p_value_text(double p);
 
 }  // namespace macroreal::detail
