@@ -169,7 +169,7 @@ TestResult z_test(double estimate, double se, double bound, bool two_sided) {
     const double z = (estimate - bound) / se;
     t.statistic = z;
     t.p_value = 2.0 * boost::math::cdf(boost::math::complement(boost::math::normal(), std::fabs(z)));
-    t.sigma = gaussian_sigma(t.p_value, &t.sigma_capped);
+    t.sigma = gaussian_sigma(t.p_value, Sidedness::two_sided, &t.sigma_capped);
   }
   t.note = "corrected estimate, delta-method se including the rates' uncertainty";
   return t;

@@ -362,7 +362,8 @@ std::string analysis_text(const AnalysisResult& r) {
         t.row({a.label, tr.method + (tr.method == a.primary_method ? " *" : ""), detail::estimate_text(tr.statistic),
                detail::p_value_text(tr.p_value), detail::estimate_text(tr.sigma, 2), tr.note});
     out += t.str();
-    out += "  * the p-value that enters the multiplicity adjustment; sigma = Phi^-1(1 - p)\n";
+    out += "  * the p-value that enters the multiplicity adjustment; sigma = Phi^-1(1 - p) one-sided (0 for p >= 0.5),\n"
+           "    Phi^-1(1 - p/2) two-sided\n";
   }
   out += "\n";
 

@@ -250,7 +250,8 @@ std::string analysis_report_markdown(const AnalysisResult& r, const AnalysisFigu
   for (const auto& a : r.nsit)
     if (const auto* q = estimate_of(r, a.quantity)) all_intervals(md, *q);
 
-  md += "## Tests\n\nsigma is the one-sided Gaussian equivalent Phi^-1(1 - p) of each p-value. LG tests are "
+  md += "## Tests\n\nsigma is the Gaussian significance of each p-value: Phi^-1(1 - p) for a one-sided test (0 when "
+        "p >= 0.5), Phi^-1(1 - p/2) for a two-sided one. LG tests are "
         "one-sided (H0: K <= bound), NSIT tests two-sided (H0: S = 0) unless marked otherwise.\n\n";
   for (const auto& a : r.leggett_garg) {
     md += "### " + a.label + "\n\n";

@@ -24,20 +24,22 @@ double shots(const std::vector<double>& c) {
 
 TestResult finish(TestResult r) {
   r.p_value = std::clamp(r.p_value, 0.0, 1.0);
-  r.sigma = gaussian_sigma(r.p_value, &r.sigma_capped);
+  r.sigma = gaussian_sigma(r.p_value, Sidedness::one_sided, &r.sigma_capped);
   return r;
 }
 
 }  // namespace
 
-double gaussian_sigma(double p_value, bool* capped) {
+double gaussian_sigma(double p_value, Sidedness sides, bool* capped) {
   if (!(p_value >= 0.0 && p_value <= 1.0))
     throw DomainError("p-value = " + std::to_string(p_value) + ", but must be in [0, 1]");
   const bool cap = p_value < kPFloor;
   if (capped) *capped = cap;
   const double p = std::max(p_value, kPFloor);
-  if (p >= 1.0) return -std::numeric_limits<double>::infinity();
-  return boost::math::quantile(boost::math::complement(boost::math::normal_distribution<double>(), p));
+  // The upper-tail probability whose quantile is the significance.
+  const double tail = sides == Sidedness::two_sided ? 0.5 * p : p;
+  if (tail >= 0.5) return 0.0;
+  return boost::math::quantile(boost::math::complement(boost::math::normal_distribution<double>(), tail));
 }
 
 TestResult lg_z_test(double estimate, double std_error, double bound) {

@@ -1,7 +1,6 @@
 // One-sided tests of a Leggett-Garg bound, H0: K <= bound (K_3: bound 1; K_n: n - 2), against
-// K > bound. Each returns a p-value, its one-sided Gaussian equivalent sigma = Phi^-1(1 - p)
-// (Boost.Math normal quantile; p is floored at 1e-300, sigma capped accordingly and flagged),
-// and the method name.
+// K > bound. Each returns a p-value, its Gaussian significance sigma (gaussian_sigma below,
+// one-sided) and the method name.
 //
 // (a) "z-asymptotic": z = (K^ - bound) / se with the caller's estimate and delta-method SE
 //     (e.g. the pooled MLE of estimator.hpp); p = 1 - Phi(z). Large-sample only.
@@ -40,13 +39,22 @@ struct TestResult {
   std::string method;          // "z-asymptotic", "hoeffding", "empirical-bernstein", ...
   double statistic = 0.0;      // z, L^ - bound, T, ... (method dependent)
   double p_value = 1.0;
-  double sigma = 0.0;          // Phi^-1(1 - p): one-sided Gaussian equivalent
+  double sigma = 0.0;          // gaussian_sigma(p) for the test's sidedness, >= 0
   bool sigma_capped = false;   // p underflowed the floor 1e-300
   std::string note;
 };
 
-// sigma = Phi^-1(1 - p) with the floor described above.
-double gaussian_sigma(double p_value, bool* capped = nullptr);
+// The significance of a p-value in Gaussian standard deviations ("sigma"), never negative:
+//   one-sided: Phi^-1(1 - p) for p < 1/2 (the z of a one-sided z test), 0 for p >= 1/2: data
+//     on the null's side are no evidence against it, and the signed statistic says how far.
+//     Cowan, Cranmer, Gross & Vitells, Eur. Phys. J. C 71:1554 (2011), sec. 2: Z = Phi^-1(1 - p),
+//     a deficit giving Z = 0.
+//   two-sided: Phi^-1(1 - p/2), the |z| of a two-sided z test with this p (Phi^-1(1 - p) would
+//     understate it, and go negative for p > 1/2).
+// Boost.Math normal quantile; p is floored at 1e-300 (*capped set), so the value stays finite.
+// DomainError for p outside [0, 1].
+enum class Sidedness { one_sided, two_sided };
+double gaussian_sigma(double p_value, Sidedness sides, bool* capped = nullptr);
 
 TestResult lg_z_test(double estimate, double std_error, double bound);
 TestResult lg_hoeffding_test(const CellCounts& counts, const LinearFunctional& k, double bound);

@@ -137,7 +137,7 @@ MaxStatisticResult max_statistic_calibration(const JointScan& scan,
   r.largest = static_cast<std::size_t>(std::max_element(r.statistic.begin(), r.statistic.end()) -
                                        r.statistic.begin());
   r.p_largest = r.adjusted_p[r.largest];
-  r.sigma_largest = gaussian_sigma(r.p_largest);
+  r.sigma_largest = gaussian_sigma(r.p_largest, Sidedness::one_sided);  // maxT: upper tail
   return r;
 }
 

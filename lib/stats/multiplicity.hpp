@@ -56,7 +56,7 @@ struct MaxStatisticResult {
   std::vector<double> adjusted_p;    // single-step maxT adjusted p-value per setting
   std::size_t largest = 0;           // index of the largest T_k
   double p_largest = 1.0;            // adjusted p of that setting
-  double sigma_largest = 0.0;        // Phi^-1(1 - p_largest)
+  double sigma_largest = 0.0;        // one-sided gaussian_sigma(p_largest)
   long replicates = 0;
   std::uint64_t seed = 0;
 };

@@ -12,9 +12,9 @@ namespace {
 
 double upper_tail(double z) { return 0.5 * std::erfc(z / std::sqrt(2.0)); }
 
-TestResult with_sigma(TestResult r) {
+TestResult with_sigma(TestResult r, Sidedness sides) {
   r.p_value = std::clamp(r.p_value, 0.0, 1.0);
-  r.sigma = gaussian_sigma(r.p_value, &r.sigma_capped);
+  r.sigma = gaussian_sigma(r.p_value, sides, &r.sigma_capped);
   return r;
 }
 
@@ -101,7 +101,7 @@ TestResult nsit_score_test(const CellCounts& counts, const LinearFunctional& s) 
     r.statistic = est / se0;
     r.p_value = 2.0 * upper_tail(std::abs(r.statistic));
   }
-  return with_sigma(r);
+  return with_sigma(r, Sidedness::two_sided);
 }
 
 namespace {
@@ -140,7 +140,7 @@ TestResult barnard_exact_test(long x1, long n1, long x2, long n2) {
   r.method = "barnard-exact";
   r.statistic = wald(x1, x2);
   r.p_value = best;
-  return with_sigma(r);
+  return with_sigma(r, Sidedness::two_sided);
 }
 
 TestResult boschloo_exact_test(long x1, long n1, long x2, long n2) {
@@ -200,7 +200,7 @@ TestResult boschloo_exact_test(long x1, long n1, long x2, long n2) {
   r.statistic = p_less < p_greater ? f_less : f_greater;
   r.p_value = std::min(1.0, 2.0 * std::min(p_less, p_greater));
   r.note = "two-sided: twice the smaller one-sided p-value";
-  return with_sigma(r);
+  return with_sigma(r, Sidedness::two_sided);
 }
 
 TestResult nsit_hoeffding_test(const CellCounts& counts, const LinearFunctional& s) {
@@ -215,7 +215,7 @@ TestResult nsit_hoeffding_test(const CellCounts& counts, const LinearFunctional&
   r.p_value = std::min(1.0, 2.0 * std::min(up.p_value, down.p_value));
   r.note = "finite-sample bound (Hoeffding 1963) over the independent sequences, any readout; "
            "two-sided: twice the smaller one-sided bound";
-  return with_sigma(r);
+  return with_sigma(r, Sidedness::two_sided);
 }
 
 BinomialArms nsit_binomial_arms(const CampaignCounts& counts, const std::string& from,
@@ -261,7 +261,7 @@ TestResult nsit_tost(const CellCounts& counts, const LinearFunctional& s, double
   r.statistic = est;
   r.p_value = std::max(p_hi, p_lo);
   r.note = "equivalence |S| < " + std::to_string(margin) + " is concluded when p < alpha";
-  return with_sigma(r);
+  return with_sigma(r, Sidedness::one_sided);  // the larger of two one-sided p-values
 }
 
 std::vector<TestResult> nsit_tests(const CampaignCounts& campaign, const std::string& from,

@@ -110,12 +110,12 @@ TEST_CASE("LG tests: z test and Gaussian sigma", "[stats]") {
   CHECK_CLOSE(z.statistic, 2.0, 1e-12, 0.0);
   CHECK_CLOSE(z.p_value, 0.0227501319481792, 1e-15, 0.0);
   CHECK_CLOSE(z.sigma, 2.0, 1e-9, 0.0);
-  CHECK_CLOSE(gaussian_sigma(0.00134989803163009), 3.0, 1e-9, 0.0);
+  CHECK_CLOSE(gaussian_sigma(0.00134989803163009, Sidedness::one_sided), 3.0, 1e-9, 0.0);
   bool capped = false;
-  CHECK(std::isfinite(gaussian_sigma(0.0, &capped)));
+  CHECK(std::isfinite(gaussian_sigma(0.0, Sidedness::one_sided, &capped)));
   CHECK(capped);
   CHECK_THROWS_AS(lg_z_test(1.0, -1.0, 1.0), DomainError);
-  CHECK_THROWS_AS(gaussian_sigma(1.5), DomainError);
+  CHECK_THROWS_AS(gaussian_sigma(1.5, Sidedness::one_sided), DomainError);
 }
 
 TEST_CASE("LG parametric bootstrap reproduces the exact binomial test for one binomial", "[stats]") {
