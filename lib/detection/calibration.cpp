@@ -25,8 +25,8 @@ std::vector<long> resample(RandomEngine& g, const std::vector<long>& h) {
 }
 
 // Percentile interval: order statistics at ceil(B a/2) and ceil(B (1 - a/2)) (1-based).
-Interval percentile(double estimate, std::vector<double> v, double level) {
-  Interval iv{estimate, estimate, estimate};
+CalibrationEstimate percentile(double estimate, std::vector<double> v, double level) {
+  CalibrationEstimate iv{estimate, estimate, estimate};
   if (v.empty()) return iv;
   std::sort(v.begin(), v.end());
   const double a = (1 - level) / 2;

@@ -31,7 +31,10 @@ struct CalibrationOptions {
   std::vector<double> table_windows;
 };
 
-struct Interval {
+// A calibrated quantity: its estimate and percentile-bootstrap interval [lo, hi]. Not named
+// Interval: stats/bootstrap.hpp defines macroreal::Interval (lo, hi, valid), and code that
+// uses both a calibration and the analysis includes both headers.
+struct CalibrationEstimate {
   double estimate = 0, lo = 0, hi = 0;
 };
 
@@ -51,8 +54,8 @@ struct CalibrationResult {
   GoodnessOfFit gof;
   ThresholdChoice minimum_error, balanced;
   long threshold = 0;  // the one used: minimum total error
-  Interval dark_rate, bright_rate, bright_fraction;
-  Interval dark_read_bright, bright_read_dark;
+  CalibrationEstimate dark_rate, bright_rate, bright_fraction;
+  CalibrationEstimate dark_read_bright, bright_read_dark;
   double level = 0.95;
   std::uint64_t seed = 1;
   int bootstrap_replicates = 0, bootstrap_failures = 0;

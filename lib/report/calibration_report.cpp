@@ -23,7 +23,7 @@ std::string sig(double x, int digits = 4) {
 
 ordered_json number_or_null(double x) { return std::isfinite(x) ? ordered_json(x) : ordered_json(nullptr); }
 
-ordered_json interval_json(const Interval& iv, double level) {
+ordered_json interval_json(const CalibrationEstimate& iv, double level) {
   return {{"estimate", iv.estimate}, {"ci", {iv.lo, iv.hi}}, {"level", level}};
 }
 
@@ -126,7 +126,7 @@ std::string calibration_result_json_text(const CalibrationResult& r) {
 
 std::string calibration_result_text(const CalibrationResult& r) {
   const std::string lvl = sig(100 * r.level, 3) + " %";
-  auto ci = [&](const Interval& iv) {  // built piecewise: GCC 12 gives a false -Wrestrict otherwise
+  auto ci = [&](const CalibrationEstimate& iv) {  // built piecewise: GCC 12 gives a false -Wrestrict otherwise
     std::string s = "[";
     s += sig(iv.lo);
     s += ", ";
