@@ -10,6 +10,7 @@
 #include <plplot/plstream.h>
 
 #include "core/error.hpp"
+#include "report/map_geometry.hpp"
 
 namespace macroreal {
 
@@ -116,10 +117,12 @@ Frame data_frame(const Figure& f) {
     }
   }
   if (f.map) {
-    bx.add(f.map->x_min);
-    bx.add(f.map->x_max);
-    by.add(f.map->y_min);
-    by.add(f.map->y_max);
+    // The outer cells stand half a step beyond the grid (map_geometry.hpp).
+    const MapRect e = map_extent(*f.map);
+    bx.add(e.x0);
+    bx.add(e.x1);
+    by.add(e.y0);
+    by.add(e.y1);
   }
   if (bx.empty() || by.empty()) throw DomainError("figure '" + f.title + "': nothing finite to draw");
   auto [x0, x1] = f.map ? std::pair{bx.lo, bx.hi} : bx.padded();
@@ -165,18 +168,24 @@ void draw_map(plstream& pls, const FigureMap& m, const Frame& frame) {
       if (!std::isfinite(v)) v = blank;
   std::vector<const PLFLT*> rows(nx);
   for (int i = 0; i < nx; ++i) rows[i] = z[i].data();
-  MapTransform t{m.x_min, (m.x_max - m.x_min) / (nx - 1), m.y_min, (m.y_max - m.y_min) / (ny - 1)};
+  // imagefr fills value (i, j) between the transformed corners (i, j) and (i + 1, j + 1);
+  // starting the corners half a step low centres every cell on its grid point
+  // (map_geometry.hpp; the cells are map_cell's).
+  const MapRect first = map_cell(m, 0, 0);
+  MapTransform t{first.x0, first.x1 - first.x0, first.y0, first.y1 - first.y0};
   if (diverging)
     set_diverging_colours(pls);
   else
     set_map_colours(pls);
-  pls.imagefr(rows.data(), nx, ny, m.x_min, m.x_max, m.y_min, m.y_max, zlo, zhi, zlo, zhi,
+  const MapRect extent = map_extent(m);
+  pls.imagefr(rows.data(), nx, ny, extent.x0, extent.x1, extent.y0, extent.y1, zlo, zhi, zlo, zhi,
               map_transform, &t);
   if (m.boundary_level) {
-    const PLFLT level = m.log_z ? std::log10(*m.boundary_level) : *m.boundary_level;
+    // Marching squares that leave out squares with a missing corner: PLplot's contour would
+    // take the blank marker above as a low value and ring every missing point.
     pls.col0(1);
     pls.width(2.5);
-    pls.cont(rows.data(), nx, ny, 1, nx, 1, ny, &level, 1, map_transform, &t);
+    for (const MapSegment& s : map_contour(m, *m.boundary_level)) pls.join(s.x0, s.y0, s.x1, s.y1);
     pls.width(1.0);
   }
   // Colour bar beside the plot: a vertical gradient with its own labelled axis.
@@ -187,7 +196,9 @@ void draw_map(plstream& pls, const FigureMap& m, const Frame& frame) {
   for (int k = 0; k < 64; ++k) grad_lo[k] = grad_hi[k] = zlo + (zhi - zlo) * k / 63.0;
   grad[0] = grad_lo.data();
   grad[1] = grad_hi.data();
-  MapTransform bar{0.0, 1.0, zlo, (zhi - zlo) / 63.0};
+  // Bar value k is zlo + k (zhi - zlo) / 63, its cell centred on it like the map's.
+  const double bar_step = (zhi - zlo) / 63.0;
+  MapTransform bar{0.0, 1.0, zlo - 0.5 * bar_step, bar_step};
   pls.imagefr(grad.data(), 2, 64, 0.0, 1.0, zlo, zhi, zlo, zhi, zlo, zhi, map_transform, &bar);
   pls.col0(1);
   pls.box("bc", 0.0, 0, m.log_z ? "bcmstvl" : "bcmstv", 0.0, 0);

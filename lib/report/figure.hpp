@@ -35,9 +35,10 @@ struct FigureSeries {
   bool dashed = false;
 };
 
-// A colour map z(x, y) on a regular grid: z[i][j] at x = x_min + i*dx, y = y_min + j*dy.
-// NaN cells are left blank. Optional contour at one level draws a boundary (e.g. where a test
-// becomes feasible).
+// A colour map z(x, y) on a regular grid: z[i][j] at x = x_min + i*dx, y = y_min + j*dy, drawn
+// as a cell centred on that point (the plotted range is half a step wider than the grid on each
+// side; map_geometry.hpp). NaN cells are left blank. Optional contour at one level draws a
+// boundary (e.g. where a test becomes feasible); it is not drawn around NaN cells.
 struct FigureMap {
   std::vector<std::vector<double>> z;
   double x_min = 0, x_max = 1, y_min = 0, y_max = 1;

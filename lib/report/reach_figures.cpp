@@ -94,17 +94,12 @@ ReachMapFigure reach_map_figure(const ReachMap& map, const ReachOptions& options
                       "figure (the CSV says so point by point)");
   m.log_z = true;
   m.z_label = "lab hours (blank: no conclusive test)";
-  // The colour map draws value (i, j) as the cell from grid coordinate i to i + 1; shifting
-  // the grid by half a step centres each cell on its grid point, and the plotted range is
-  // widened by half a step on each side so that the outer cells show in full.
-  const double hx = 0.5 * (coordinate(map.xs[1], out.log_x) - coordinate(map.xs[0], out.log_x));
-  const double hy = 0.5 * (coordinate(map.ys[1], out.log_y) - coordinate(map.ys[0], out.log_y));
-  m.x_min = coordinate(map.xs.front(), out.log_x) - hx;
-  m.x_max = coordinate(map.xs.back(), out.log_x) - hx;
-  m.y_min = coordinate(map.ys.front(), out.log_y) - hy;
-  m.y_max = coordinate(map.ys.back(), out.log_y) - hy;
-  f.x_range = {m.x_min, m.x_max + 2.0 * hx};
-  f.y_range = {m.y_min, m.y_max + 2.0 * hy};
+  // The colour map centres each cell on its grid point and shows the outer cells in full
+  // (figure.hpp), so the grid is the scan itself.
+  m.x_min = coordinate(map.xs.front(), out.log_x);
+  m.x_max = coordinate(map.xs.back(), out.log_x);
+  m.y_min = coordinate(map.ys.front(), out.log_y);
+  m.y_max = coordinate(map.ys.back(), out.log_y);
   // A linear scan must be equally spaced for the colour map's regular grid.
   auto check_regular = [](const std::vector<double>& v, bool log, const std::string& name) {
     const double d = coordinate(v[1], log) - coordinate(v[0], log);

@@ -17,10 +17,12 @@
 
 namespace macroreal::test_support {
 
-// JSON printed by one of the support scripts for `file`, or null when it could not run.
-inline nlohmann::json run_support_script(const std::string& script, const std::filesystem::path& file) {
+// JSON printed by one of the support scripts for `file` (and `args`, passed as they are), or
+// null when it could not run.
+inline nlohmann::json run_support_script(const std::string& script, const std::filesystem::path& file,
+                                         const std::string& args = "") {
   const std::string cmd = std::string(MACROREAL_PYTHON) + " '" + MACROREAL_SOURCE_DIR +
-                          "/tests/support/" + script + "' '" + file.string() + "' 2>/dev/null";
+                          "/tests/support/" + script + "' '" + file.string() + "' " + args + " 2>/dev/null";
   FILE* p = ::popen(cmd.c_str(), "r");
   if (!p) return nullptr;
   std::string out;

@@ -1,7 +1,8 @@
 #!/usr/bin/env python3
 """Summary of a PNG file for figure tests, using only the Python standard library (zlib):
 prints JSON {"width", "height", "non_background_fraction", "colours"} where the background is
-the colour of the top-left pixel. Decoding follows the PNG specification (W3C/ISO 15948:
+the colour of the top-left pixel; with further arguments "X,Y" (pixel column and row from the
+top left) also "pixels": the [r, g, b] of each, in order. Decoding follows the PNG specification (W3C/ISO 15948:
 chunk layout, zlib-compressed IDAT, per-row filter types 0-4 with the Paeth predictor)."""
 import json
 import struct
@@ -17,7 +18,7 @@ def paeth(a, b, c):
     return b if pb <= pc else c
 
 
-def main(path):
+def main(path, points=()):
     data = open(path, "rb").read()
     if data[:8] != b"\x89PNG\r\n\x1a\n":
         raise SystemExit("not a PNG: " + path)
@@ -63,10 +64,16 @@ def main(path):
             colours.add(px)
             if px != background:
                 other += 1
-    print(json.dumps({"width": width, "height": height,
-                      "non_background_fraction": other / float(width * height),
-                      "colours": len(colours)}))
+    out = {"width": width, "height": height,
+           "non_background_fraction": other / float(width * height),
+           "colours": len(colours)}
+    if points:
+        out["pixels"] = []
+        for p in points:
+            x, y = (int(v) for v in p.split(","))
+            out["pixels"].append(list(rows[y][x * bpp:x * bpp + 3]))
+    print(json.dumps(out))
 
 
 if __name__ == "__main__":
-    main(sys.argv[1])
+    main(sys.argv[1], sys.argv[2:])
