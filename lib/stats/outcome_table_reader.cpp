@@ -652,6 +652,7 @@ class CsvParser {
     bool going = true;
     std::size_t bits = 0;
     int len = 0;
+    long photon_counts = 0;  // tallied only if the row is used: a rejected row reports nothing
     for (int k = 0; k < std::max(n, nres); ++k) {
       const int rc = k < nres ? result_columns_[static_cast<std::size_t>(k)] : -1;
       const std::string_view f = field(rc);
@@ -691,7 +692,7 @@ class CsvParser {
         return reject(row_reason::kMalformedResult, rc,
                       "result '" + std::string(f) +
                           "' is neither dark, bright nor a non-negative integer count");
-      if (f[0] >= '0' && f[0] <= '9') ++result_.photon_count_results;
+      if (f[0] >= '0' && f[0] <= '9') ++photon_counts;
       bits = (bits << 1) | static_cast<std::size_t>(r);
       ++len;
       if (r == 1 && destructive_) going = false;
@@ -702,6 +703,7 @@ class CsvParser {
     // Accepted: count it and remember the shot and the time.
     result_.counts.sequences[static_cast<std::size_t>(s)].counts[static_cast<std::size_t>(cell)] += 1.0;
     ++rows.used;
+    result_.photon_count_results += photon_counts;
     if (has_shot) {
       const std::size_t word = static_cast<std::size_t>(shot >> 6);
       if (word >= shape.seen.size()) shape.seen.resize(std::max(word + 1, 2 * shape.seen.size()), 0);

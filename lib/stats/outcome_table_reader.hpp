@@ -70,7 +70,7 @@ struct ShotTimeRange {
 struct OutcomeTableRead {
   CampaignCounts counts;                   // layout of empty_counts(protocol), rows filled
   std::vector<ShotTimeRange> time_ranges;  // parallel to counts.sequences
-  long photon_count_results = 0;           // results given as photon counts (thresholded)
+  long photon_count_results = 0;           // photon-count results (thresholded) of used rows
 };
 
 // Streams the CSV file. Throws InputError for an unreadable file, a bad header, and (policy
