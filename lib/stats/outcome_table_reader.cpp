@@ -1,6 +1,11 @@
 // Streaming CSV outcome tables and counts JSON into CampaignCounts (see the header).
 //
-// Speed: the file is read in blocks of options.block_bytes with fread; complete lines are
+// Speed: a regular file is cut into chunks of options.block_bytes at line starts; two
+// threads (options.threads) tally chunks of plain rows on their own and the chunks are
+// merged in file order (ParallelTableRead below); any chunk with another kind of line, or
+// a shot index already taken, is read again by the general path during its merge, so
+// results and messages are those of one thread. Other input (a pipe, threads = 1, a small
+// file) is read in blocks of options.block_bytes with fread; complete lines are
 // parsed in place (SSE2 masks of the 64 bytes from each line's start for line ends and
 // commas; time_s by the exact decimal parsers of decimal_field.hpp, std::from_chars for
 // the forms they do not take), so a row costs no allocation. Sequence names are looked up
@@ -20,6 +25,14 @@
 #include <fstream>
 #include <memory>
 #include <string_view>
+#include <condition_variable>
+#include <exception>
+#include <mutex>
+#include <system_error>
+#include <thread>
+
+#include <sys/stat.h>
+#include <unistd.h>
 
 #if defined(__SSE2__)
 #include <emmintrin.h>
@@ -237,6 +250,10 @@ class CsvParser {
     std::vector<std::string> names;
     for (const auto& s : result_.counts.sequences) names.push_back(s.name);
     names_ = std::make_unique<NameTable>(names);
+    for (auto& s : result_.counts.sequences) {
+      cell_offset_.push_back(static_cast<int>(flat_cell_.size()));
+      for (double& c : s.counts) flat_cell_.push_back(&c);
+    }
   }
 
   // Parses the complete lines in [begin, end) (each ends with '\n', except possibly the
@@ -272,6 +289,100 @@ class CsvParser {
     for (std::size_t i = 0; i < times_.size(); ++i)
       if (times_[i].any) result_.time_ranges[i] = {true, times_[i].first.exact(), times_[i].last.exact()};
     return std::move(result_);
+  }
+
+  bool have_header() const { return have_header_; }
+  bool fast_enabled() const { return fast_.enabled; }
+
+  // ---- Chunks read by several threads (read_outcome_table) ---------------------------
+  // A worker tallies a chunk of whole lines on its own (tally_chunk, const: it reads only
+  // the header's tables); the chunks are then merged in file order (merge_chunk). A chunk
+  // is "plain" if every line is blank, a comment or a row that fast_match takes; for a
+  // plain chunk the merge sets the shot bits in order and, if none was set already (no
+  // duplicate within the chunk or with an earlier one), adds the tallies: the same state
+  // as lines() over the chunk would leave. Any other chunk is given to lines() (the
+  // general path, with its messages and line numbers), after the chunks before it.
+  struct ChunkTally {
+    bool plain = true;
+    long lines = 0, rows = 0;
+    std::vector<std::uint64_t> cells;  // per flat cell
+    std::vector<TimeTrack> times;      // per sequence
+    std::vector<std::uint64_t> shots;  // (sequence << 32) | shot, in row order
+  };
+
+  void tally_chunk(const char* begin, const char* end, ChunkTally& t) const {
+    t.plain = true;
+    t.lines = t.rows = 0;
+    t.cells.assign(flat_cell_.size(), 0);
+    t.times.assign(times_.size(), TimeTrack{});
+    t.shots.clear();
+    if (!fast_.enabled) {
+      t.plain = false;
+      return;
+    }
+    for (const char* p = begin; p < end;) {
+      std::uint64_t commas, newlines;
+      separator_masks(p, commas, newlines);
+      const char* line_end;
+      const bool short_line = newlines != 0;
+      if (short_line) {
+        line_end = p + __builtin_ctzll(newlines);
+        if (line_end > end) line_end = end;
+      } else {
+        const char* nl = static_cast<const char*>(std::memchr(p, '\n', static_cast<std::size_t>(end - p)));
+        line_end = nl ? nl : end;
+      }
+      ++t.lines;
+      const char* e = line_end;
+      if (e > p && e[-1] == '\r') --e;
+      if (e != p && *p != '#') {
+        FastRow r;
+        if (!short_line || line_end - p >= 64 || !fast_match(p, e, commas, begin, r)) {
+          t.plain = false;
+          return;
+        }
+        ++t.rows;
+        ++t.cells[static_cast<std::size_t>(r.flat)];
+        if (r.has_shot) t.shots.push_back(std::uint64_t{static_cast<std::uint32_t>(r.seq)} << 32 | r.shot);
+        if (r.has_time) track_time(t.times[static_cast<std::size_t>(r.seq)], r.t);
+      }
+      p = line_end + 1;
+    }
+  }
+
+  // Merges a plain chunk that follows every line read so far; false (nothing changed) if
+  // one of its shots was taken (then the chunk goes to lines()).
+  bool merge_chunk(const ChunkTally& t) {
+    if (!t.plain) return false;
+    std::size_t i = 0;
+    for (; i < t.shots.size(); ++i)
+      if (!take_shot(shapes_[static_cast<std::size_t>(t.shots[i] >> 32)], static_cast<std::uint32_t>(t.shots[i])))
+        break;
+    if (i < t.shots.size()) {  // undo: the bits set here were clear before
+      for (std::size_t j = 0; j < i; ++j) {
+        const auto shot = static_cast<std::uint32_t>(t.shots[j]);
+        shapes_[static_cast<std::size_t>(t.shots[j] >> 32)].seen[shot >> 6] &= ~(std::uint64_t{1} << (shot & 63));
+      }
+      return false;
+    }
+    for (std::size_t c = 0; c < t.cells.size(); ++c)
+      if (t.cells[c] != 0) *flat_cell_[c] += static_cast<double>(t.cells[c]);
+    result_.counts.rows.read += t.rows;
+    result_.counts.rows.used += t.rows;
+    for (std::size_t q = 0; q < t.times.size(); ++q) {
+      const TimeTrack& c = t.times[q];
+      if (!c.any) continue;
+      // An earlier row wins a tie, as in lines(): the chunk's extremes replace only if
+      // strictly beyond.
+      TimeTrack& g = times_[q];
+      if (!g.any) g = c;
+      else {
+        if (c.first.approx < g.first.approx) g.first = c.first;
+        if (c.last.approx > g.last.approx) g.last = c.last;
+      }
+    }
+    line_no_ += t.lines;
+    return true;
   }
 
  private:
@@ -355,6 +466,7 @@ class CsvParser {
     std::uint32_t lens = 0;  // name length | results text length << 8
     int seq = -1;            // -1: empty slot
     int cell = -1;
+    int flat = -1;           // the cell over all sequences (flat_cell_)
   };
   struct FastTable {
     bool enabled = false;
@@ -363,7 +475,6 @@ class CsvParser {
     std::size_t mask = 0;
     std::uint64_t mult = 1;  // slot = (hash * mult) >> shift, chosen so no two cells collide
     int shift = 58;
-    std::vector<double*> counts;  // per sequence: its counts array
   };
 
   static std::uint64_t fast_hash(std::uint64_t name, std::uint64_t w0, std::uint64_t w1,
@@ -418,6 +529,7 @@ class CsvParser {
         e.lens = static_cast<std::uint32_t>(name.size() | (tl << 8));
         e.seq = static_cast<int>(s);
         e.cell = code_to_cell[code];
+        e.flat = cell_offset_[s] + e.cell;
         entries.push_back(e);
       }
     }
@@ -458,12 +570,24 @@ class CsvParser {
       while (fast_.slots[h].seq >= 0) h = (h + 1) & fast_.mask;
       fast_.slots[h] = e;
     }
-    for (auto& s : result_.counts.sequences) fast_.counts.push_back(s.counts.data());
     fast_.enabled = true;
   }
 
-  // Returns false (and changes nothing) unless the row is a plain valid row of the table.
-  [[gnu::always_inline]] bool fast_row(const char* b, const char* e, std::uint64_t commas) {
+  // What the fast path read from a plain row.
+  struct FastRow {
+    int seq = -1;
+    int flat = -1;  // cell index over all sequences (flat_cell_)
+    bool has_shot = false, has_time = false;
+    std::uint32_t shot = 0;
+    Decimal t;
+  };
+
+  // Returns false unless the row is a plain row of the table that row() would accept if its
+  // shot index were not taken yet (the duplicate check is the caller's: against the shot
+  // bits here, or when a chunk is merged). Reads no state but the header's; `buffer` is the
+  // start of the buffer the line is in.
+  [[gnu::always_inline]] bool fast_match(const char* b, const char* e, std::uint64_t commas,
+                                         const char* buffer, FastRow& out) const {
     const std::size_t line_len = static_cast<std::size_t>(e - b);  // < 64
     std::uint64_t m = commas & ((std::uint64_t{1} << line_len) - 1);
     if (m == 0) return false;
@@ -515,39 +639,50 @@ class CsvParser {
            (slot->lens ^ lens)) == 0)
         break;
     }
-    auto& shape = shapes_[static_cast<std::size_t>(slot->seq)];
     std::uint64_t shot = 0;
     const std::size_t shot_len = static_cast<std::size_t>(shot_e - shot_b);
-    if (shot_len > 0) {
-      if (shot_len > 8 || !eight_digits(shot_b, shot_len, shot)) return false;
-      const std::size_t word = static_cast<std::size_t>(shot >> 6);
-      if (word < shape.seen.size() && (shape.seen[word] >> (shot & 63)) & 1u) return false;
-    }
-    Decimal t;
+    if (shot_len > 0 && (shot_len > 8 || !eight_digits(shot_b, shot_len, shot))) return false;
     const std::size_t time_len = static_cast<std::size_t>(time_e - time_b);
     // The one-pass parser reads the 16 bytes that end at the field's end.
-    if (time_len > 0 && !(time_e - begin_ >= 16 && parse_time_right_aligned(std::string_view(time_b, time_len), t)) &&
-        !parse_time(std::string_view(time_b, time_len), t))
+    if (time_len > 0 && !(time_e - buffer >= 16 && parse_time_right_aligned(std::string_view(time_b, time_len), out.t)) &&
+        !parse_time(std::string_view(time_b, time_len), out.t))
       return false;
+    out.seq = slot->seq;
+    out.flat = slot->flat;
+    out.has_shot = shot_len > 0;
+    out.shot = static_cast<std::uint32_t>(shot);  // at most 8 digits
+    out.has_time = time_len > 0;
+    return true;
+  }
 
+  // Sets the shot's bit; false (nothing changed) if it was set (a duplicate).
+  static bool take_shot(SequenceShape& shape, std::uint32_t shot) {
+    const std::size_t word = shot >> 6;
+    if (word < shape.seen.size() && (shape.seen[word] >> (shot & 63)) & 1u) return false;
+    if (word >= shape.seen.size()) shape.seen.resize(std::max(word + 1, 2 * shape.seen.size()), 0);
+    shape.seen[word] |= std::uint64_t{1} << (shot & 63);
+    return true;
+  }
+
+  static void track_time(TimeTrack& tr, const Decimal& t) {
+    if (!tr.any) tr = {true, t, t};
+    else {
+      if (t.approx < tr.first.approx) tr.first = t;
+      if (t.approx > tr.last.approx) tr.last = t;
+    }
+  }
+
+  // Returns false (and changes nothing) unless the row is a plain valid row of the table.
+  [[gnu::always_inline]] bool fast_row(const char* b, const char* e, std::uint64_t commas) {
+    FastRow r;
+    if (!fast_match(b, e, commas, begin_, r)) return false;
+    if (r.has_shot && !take_shot(shapes_[static_cast<std::size_t>(r.seq)], r.shot)) return false;
     // Accepted: the same bookkeeping as row().
     auto& rows = result_.counts.rows;
     ++rows.read;
     ++rows.used;
-    fast_.counts[static_cast<std::size_t>(slot->seq)][slot->cell] += 1.0;
-    if (shot_len > 0) {
-      const std::size_t word = static_cast<std::size_t>(shot >> 6);
-      if (word >= shape.seen.size()) shape.seen.resize(std::max(word + 1, 2 * shape.seen.size()), 0);
-      shape.seen[word] |= std::uint64_t{1} << (shot & 63);
-    }
-    if (time_len > 0) {
-      auto& tr = times_[static_cast<std::size_t>(slot->seq)];
-      if (!tr.any) tr = {true, t, t};
-      else {
-        if (t.approx < tr.first.approx) tr.first = t;
-        if (t.approx > tr.last.approx) tr.last = t;
-      }
-    }
+    *flat_cell_[static_cast<std::size_t>(r.flat)] += 1.0;
+    if (r.has_time) track_time(times_[static_cast<std::size_t>(r.seq)], r.t);
     return true;
   }
 
@@ -736,6 +871,177 @@ class CsvParser {
   std::vector<const char*> field_begin_, field_end_;  // the current row's fields
   const char* begin_ = nullptr;                       // start of the buffer lines() reads
   FastTable fast_;
+  std::vector<int> cell_offset_;    // per sequence: index of its first cell in flat_cell_
+  std::vector<double*> flat_cell_;  // every cell's count, sequence by sequence
+};
+
+// ----------------------------------------------------------------------------------------
+// A regular file cut into chunks for several threads. Chunk k holds the lines that start in
+// [k * B, (k + 1) * B) bytes (B = block size), so the chunks tile the file at line starts
+// and any thread can find its chunk's ends on its own: chunk k begins after the first '\n'
+// at or after byte k * B - 1 (chunk 0 at byte 0) and ends after the first '\n' at or after
+// byte (k + 1) * B - 1 (or at the end of the file).
+class ChunkedFile {
+ public:
+  ChunkedFile(std::string path, int fd, std::uint64_t size, std::size_t block)
+      : path_(std::move(path)), fd_(fd), size_(size), block_(block) {}
+
+  std::size_t block() const { return block_; }
+  long chunks() const { return static_cast<long>((size_ + block_ - 1) / block_); }
+
+  // Reads chunk k into buf; [begin, end) are its lines, followed by kPadding readable
+  // bytes (more of the file, or zeros at its end).
+  void read(long k, std::vector<char>& buf, const char*& begin, const char*& end) const {
+    const std::uint64_t from = k == 0 ? 0 : static_cast<std::uint64_t>(k) * block_ - 1;
+    const std::size_t boundary = k == 0 ? block_ - 1 : block_;  // byte (k + 1) * B - 1
+    std::size_t want = block_ + 4096, got = 0;
+    for (;;) {
+      if (buf.size() < want + kPadding) buf.resize(want + kPadding);
+      const std::size_t searched = std::max(got, boundary);
+      got += read_at(buf.data() + got, want - got, from + got);
+      if (got < want) break;  // the end of the file
+      // Stop once a '\n' at or after the boundary is in the buffer.
+      if (got > searched && std::memchr(buf.data() + searched, '\n', got - searched)) break;
+      want *= 2;  // a line longer than the read so far: read on
+    }
+    std::memset(buf.data() + got, 0, kPadding);
+    std::size_t b = 0;
+    if (k > 0) {
+      const void* nl = std::memchr(buf.data(), '\n', std::min(got, boundary));
+      b = nl ? static_cast<std::size_t>(static_cast<const char*>(nl) - buf.data()) + 1 : got;
+    }
+    std::size_t e = got;
+    if (got > boundary)
+      if (const void* nl = std::memchr(buf.data() + boundary, '\n', got - boundary))
+        e = static_cast<std::size_t>(static_cast<const char*>(nl) - buf.data()) + 1;
+    if (b >= e || (k > 0 && b > boundary)) b = e;  // no line starts in the chunk
+    begin = buf.data() + b;
+    end = buf.data() + e;
+  }
+
+ private:
+  // pread until n bytes or the end of the file; the number of bytes read.
+  std::size_t read_at(char* p, std::size_t n, std::uint64_t offset) const {
+    std::size_t done = 0;
+    while (done < n) {
+      const ssize_t r = ::pread(fd_, p + done, n - done, static_cast<off_t>(offset + done));
+      if (r < 0 && errno == EINTR) continue;
+      if (r < 0) throw InputError(path_, "", "read error: " + std::string(std::strerror(errno)));
+      if (r == 0) break;
+      done += static_cast<std::size_t>(r);
+    }
+    return done;
+  }
+
+  std::string path_;
+  int fd_;
+  std::uint64_t size_;
+  std::size_t block_;
+};
+
+// Chunks 0, 1, ... are read serially until the header is known; the rest go to `threads`
+// lanes (the calling thread and threads - 1 more), each taking the next chunk not yet
+// taken. A lane tallies a chunk, leaves the tally in a ring of kWindow slots and merges
+// whatever chunks are complete in file order; a lane waits before a chunk that would run
+// more than kWindow chunks ahead of the merge, so memory stays bounded (kWindow tallies and
+// one buffer per lane). A chunk that is not plain, or whose shots collide, is re-read and
+// given to the general path during its merge, in order, so messages, line numbers and
+// skip counts are those of one thread reading the whole file; the first exception stops
+// every lane and is rethrown.
+class ParallelTableRead {
+ public:
+  ParallelTableRead(const ChunkedFile& file, CsvParser& parser, int threads)
+      : file_(file), parser_(parser), threads_(threads), ring_(kWindow) {}
+
+  void run() {
+    const long n = file_.chunks();
+    std::vector<char> buf;
+    const char *b, *e;
+    while (next_merge_ < n && !parser_.have_header()) {  // the header, serially
+      file_.read(next_merge_, buf, b, e);
+      parser_.lines(b, e);
+      ++next_merge_;
+    }
+    if (!parser_.fast_enabled()) {  // no fast path (another column order): one thread
+      for (; next_merge_ < n; ++next_merge_) {
+        file_.read(next_merge_, buf, b, e);
+        parser_.lines(b, e);
+      }
+      return;
+    }
+    if (next_merge_ >= n) return;
+    next_take_ = next_merge_;
+    std::vector<std::thread> workers;
+    try {
+      for (int t = 1; t < threads_; ++t) workers.emplace_back([this] { lane(); });
+    } catch (const std::system_error&) {  // no more threads to be had: fewer lanes
+    }
+    lane();
+    for (auto& w : workers) w.join();
+    if (error_) std::rethrow_exception(error_);
+    MACROREAL_CHECK(next_merge_ == n);
+  }
+
+ private:
+  static constexpr long kWindow = 8;
+
+  void lane() {
+    try {
+      std::vector<char> buf;
+      const char *b, *e;
+      const long n = file_.chunks();
+      for (;;) {
+        long k;
+        {
+          std::unique_lock<std::mutex> lock(mutex_);
+          ready_.wait(lock, [&] { return failed_ || next_take_ < next_merge_ + kWindow; });
+          if (failed_ || next_take_ >= n) return;
+          k = next_take_++;
+        }
+        auto tally = std::make_unique<CsvParser::ChunkTally>();
+        tally->shots.reserve(file_.block() / 16);
+        file_.read(k, buf, b, e);
+        parser_.tally_chunk(b, e, *tally);
+        std::unique_lock<std::mutex> lock(mutex_);
+        ring_[static_cast<std::size_t>(k % kWindow)] = std::move(tally);
+        if (merging_) continue;  // the merging lane will take it
+        merging_ = true;
+        for (;;) {
+          auto& slot = ring_[static_cast<std::size_t>(next_merge_ % kWindow)];
+          if (failed_ || !slot) break;
+          auto c = std::move(slot);
+          const long m = next_merge_;
+          lock.unlock();
+          if (!parser_.merge_chunk(*c)) {  // the general path, after the chunks before it
+            file_.read(m, merge_buf_, b, e);
+            parser_.lines(b, e);
+          }
+          lock.lock();
+          ++next_merge_;
+          ready_.notify_all();
+        }
+        merging_ = false;
+      }
+    } catch (...) {
+      std::lock_guard<std::mutex> lock(mutex_);
+      if (!failed_) error_ = std::current_exception();
+      failed_ = true;
+      ready_.notify_all();
+    }
+  }
+
+  const ChunkedFile& file_;
+  CsvParser& parser_;
+  int threads_;
+  std::mutex mutex_;
+  std::condition_variable ready_;
+  long next_merge_ = 0;  // the next chunk to merge
+  long next_take_ = 0;   // the next chunk no lane has taken
+  bool merging_ = false;
+  bool failed_ = false;
+  std::exception_ptr error_;
+  std::vector<std::unique_ptr<CsvParser::ChunkTally>> ring_;
+  std::vector<char> merge_buf_;  // re-read chunks (used by the merging lane only)
 };
 
 }  // namespace
@@ -754,6 +1060,18 @@ OutcomeTableRead read_outcome_table(const std::string& path, const Protocol& pro
   std::unique_ptr<std::FILE, int (*)(std::FILE*)> f(std::fopen(path.c_str(), "rb"), &std::fclose);
   if (!f) throw InputError(path, "", "cannot open the outcome table: " + std::string(std::strerror(errno)));
   CsvParser parser(path, protocol, options);
+  {
+    // A regular file of more than two chunks is read in chunks by several threads.
+    const int fd = ::fileno(f.get());
+    struct stat st {};
+    const std::size_t chunk = std::max<std::size_t>(options.block_bytes, 64);
+    if (options.threads > 1 && ::fstat(fd, &st) == 0 && S_ISREG(st.st_mode) &&
+        static_cast<std::uint64_t>(st.st_size) > 2 * chunk) {
+      const ChunkedFile file(path, fd, static_cast<std::uint64_t>(st.st_size), chunk);
+      ParallelTableRead(file, parser, options.threads).run();
+      return parser.finish();
+    }
+  }
   const std::size_t block = std::max<std::size_t>(options.block_bytes, 4096);
   std::vector<char> buf(block + kPadding);
   std::size_t capacity = block;

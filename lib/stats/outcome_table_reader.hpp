@@ -17,7 +17,10 @@
 // Memory does not grow with the number of rows: besides the counts, the reader keeps one
 // bit per shot index per sequence for the duplicate check (max shot index / 8 bytes per
 // sequence: 1.25 MB for indices up to 10^7), the current 1 MiB block and one carried-over
-// partial line. Shot indices must be below 2^32 (else "malformed shot").
+// partial line. Shot indices must be below 2^32 (else "malformed shot"). A regular file is
+// read by OutcomeTableOptions::threads threads in chunks of block_bytes: at most 8 chunk
+// tallies (counts, time ranges and the shot indices of up to a block's rows, 8 bytes each)
+// and one block buffer per thread are held at a time.
 #pragma once
 
 #include <optional>
@@ -54,7 +57,11 @@ struct OutcomeTableOptions {
   // Photon-count threshold (count <= threshold reads dark); overrides the protocol's
   // detection.threshold. Counts in a table with no threshold at all are an InputError.
   std::optional<double> threshold;
-  std::size_t block_bytes = std::size_t{1} << 20;  // fread block size
+  std::size_t block_bytes = std::size_t{1} << 20;  // read block (and chunk) size
+  // Threads for a regular file of more than two blocks: it is cut into chunks at line
+  // starts, tallied in parallel and merged in file order (results, messages and skip
+  // counts do not depend on the number of threads). 1: one thread reads the stream.
+  int threads = 2;
 };
 
 // First and last time_s seen per sequence (drift checks); `any` false if none was given.
