@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <filesystem>
+#include <fstream>
 #include <limits>
 #include <mutex>
 
@@ -10,6 +11,7 @@
 #include <plplot/plstream.h>
 
 #include "core/error.hpp"
+#include "report/svg_ids.hpp"
 #include "report/map_geometry.hpp"
 
 namespace macroreal {
@@ -334,6 +336,19 @@ void render_figure(const Figure& figure, const std::string& path, FigureFormat f
     for (const auto& s : figure.series) draw_series(pls, s, fr, figure.log_x, figure.log_y);
     draw_legend(pls, figure, fr);
   }  // the stream's destructor finishes and closes the file
+  // cairo names some SVG elements after process-wide counters: renumber them so that the
+  // bytes depend on the figure only (svg_ids.hpp).
+  if (format == FigureFormat::svg) {
+    std::string svg;
+    {
+      std::ifstream in(path, std::ios::binary);
+      svg.assign(std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>());
+      if (!in && !in.eof()) throw InputError(path, "", "cannot read back the SVG file cairo wrote");
+    }
+    std::ofstream out(path, std::ios::binary | std::ios::trunc);
+    out << detail::renumber_svg_ids(svg);
+    if (!out.flush()) throw InputError(path, "", "cannot write the SVG file");
+  }
 }
 
 std::vector<std::string> write_figure(const Figure& figure, const std::string& dir,
