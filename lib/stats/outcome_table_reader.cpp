@@ -83,6 +83,18 @@ inline void separator_masks(const char* p, std::uint64_t& commas, std::uint64_t&
 #endif
 }
 
+// The end of the line that starts at p: its '\n' or, if there is none before `end`, `end`.
+// `newlines` is separator_masks' mask of the 64 bytes at p: a '\n' among them is read off
+// the mask, one further on (newlines == 0) is searched with memchr.
+inline const char* next_line_end(const char* p, const char* end, std::uint64_t newlines) {
+  if (newlines != 0) {
+    const char* line_end = p + __builtin_ctzll(newlines);
+    return line_end > end ? end : line_end;
+  }
+  const char* nl = static_cast<const char*>(std::memchr(p, '\n', static_cast<std::size_t>(end - p)));
+  return nl ? nl : end;
+}
+
 // The first n <= 8 bytes at p as a word, byte i in bits 8i..8i+7 (the bytes after them
 // may be read, not used).
 inline std::uint64_t short_word(const char* p, std::size_t n) {
@@ -268,16 +280,10 @@ class CsvParser {
     while (p < end) {
       std::uint64_t commas, newlines;
       separator_masks(p, commas, newlines);
-      const char* line_end;
-      bool short_line = newlines != 0;
-      if (short_line) {
-        line_end = p + __builtin_ctzll(newlines);
-        if (line_end > end) line_end = end;
-      } else {
-        const char* nl = static_cast<const char*>(std::memchr(p, '\n', static_cast<std::size_t>(end - p)));
-        line_end = nl ? nl : end;
-        short_line = line_end - p < 64;
-      }
+      const char* line_end = next_line_end(p, end, newlines);
+      // A line shorter than 64 bytes has all its commas in the mask (so has a last line
+      // without '\n').
+      const bool short_line = line_end - p < 64;
       ++line_no_;
       line(p, line_end, short_line ? commas : 0, short_line);
       p = line_end + 1;
@@ -323,15 +329,9 @@ class CsvParser {
     for (const char* p = begin; p < end;) {
       std::uint64_t commas, newlines;
       separator_masks(p, commas, newlines);
-      const char* line_end;
+      const char* line_end = next_line_end(p, end, newlines);
+      // Short only if its '\n' is in the mask: a last line without one is left to lines().
       const bool short_line = newlines != 0;
-      if (short_line) {
-        line_end = p + __builtin_ctzll(newlines);
-        if (line_end > end) line_end = end;
-      } else {
-        const char* nl = static_cast<const char*>(std::memchr(p, '\n', static_cast<std::size_t>(end - p)));
-        line_end = nl ? nl : end;
-      }
       ++t.lines;
       const char* e = line_end;
       if (e > p && e[-1] == '\r') --e;
@@ -582,6 +582,20 @@ class CsvParser {
     Decimal t;
   };
 
+  // The field that starts at q and ends at the lowest comma of `m` (the line's comma mask
+  // from b, commas already taken cleared): [field_b, field_e); that comma is cleared and q
+  // moves past it. False (nothing changed) if `m` has no comma left.
+  [[gnu::always_inline]] static bool next_field(const char* b, std::uint64_t& m, const char*& q,
+                                                const char*& field_b, const char*& field_e) {
+    if (m == 0) return false;
+    const char* c = b + __builtin_ctzll(m);
+    m &= m - 1;
+    field_b = q;
+    field_e = c;
+    q = c + 1;
+    return true;
+  }
+
   // Returns false unless the row is a plain row of the table that row() would accept if its
   // shot index were not taken yet (the duplicate check is the caller's: against the shot
   // bits here, or when a chunk is merged). Reads no state but the header's; `buffer` is the
@@ -590,29 +604,13 @@ class CsvParser {
                                          const char* buffer, FastRow& out) const {
     const std::size_t line_len = static_cast<std::size_t>(e - b);  // < 64
     std::uint64_t m = commas & ((std::uint64_t{1} << line_len) - 1);
-    if (m == 0) return false;
-    const char* c = b + __builtin_ctzll(m);
-    m &= m - 1;
-    const std::size_t name_len = static_cast<std::size_t>(c - b);
+    const char *q = b, *name_b, *name_e;
+    if (!next_field(b, m, q, name_b, name_e)) return false;
+    const std::size_t name_len = static_cast<std::size_t>(name_e - name_b);
     if (name_len == 0 || name_len > 8) return false;
-    const char* q = c + 1;
     const char *shot_b = q, *shot_e = q, *time_b = q, *time_e = q;
-    if (fast_.has_shot) {
-      if (m == 0) return false;
-      c = b + __builtin_ctzll(m);
-      m &= m - 1;
-      shot_b = q;
-      shot_e = c;
-      q = c + 1;
-    }
-    if (fast_.has_time) {
-      if (m == 0) return false;
-      c = b + __builtin_ctzll(m);
-      m &= m - 1;
-      time_b = q;
-      time_e = c;
-      q = c + 1;
-    }
+    if (fast_.has_shot && !next_field(b, m, q, shot_b, shot_e)) return false;
+    if (fast_.has_time && !next_field(b, m, q, time_b, time_e)) return false;
     const std::size_t tl = static_cast<std::size_t>(e - q);
     if (tl > kFastTextMax) return false;
     const std::uint64_t name = short_word(b, name_len);
